@@ -1,0 +1,49 @@
+// Where things go: axis positions and the vertical bands of the chart, in CSS pixels.
+
+export interface AxisSlot {
+  name: string;
+  x: number;
+}
+
+export interface Layout {
+  width: number;
+  height: number;
+  /** y of the top (largest value) and bottom (smallest value) of every axis */
+  top: number;
+  bottom: number;
+  /** centre y of the missing-values lane, below a gap */
+  laneY: number;
+  laneHalf: number;
+  slots: AxisSlot[];
+  /** half-width of the zone around an axis that reacts to the pointer */
+  grab: number;
+}
+
+export const HEADER = 48;
+const FOOTER = 42;
+const SIDE = 64;
+
+export function computeLayout(width: number, height: number, order: string[]): Layout {
+  const top = HEADER;
+  const bottom = Math.max(top + 40, height - FOOTER);
+  const laneY = bottom + 24;
+  const k = order.length;
+  const inner = Math.max(10, width - 2 * SIDE);
+  const slots = order.map((name, i) => ({ name, x: k === 1 ? width / 2 : SIDE + (i * inner) / (k - 1) }));
+  const gap = k > 1 ? inner / (k - 1) : inner;
+  return { width, height, top, bottom, laneY, laneHalf: 7, slots, grab: Math.max(8, Math.min(16, gap / 4)) };
+}
+
+/** Index of the axis whose grab zone contains x, or -1. */
+export function axisAt(layout: Layout, x: number): number {
+  let best = -1;
+  let bestD = Infinity;
+  layout.slots.forEach((s, i) => {
+    const d = Math.abs(s.x - x);
+    if (d <= layout.grab && d < bestD) {
+      best = i;
+      bestD = d;
+    }
+  });
+  return best;
+}

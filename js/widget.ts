@@ -1,0 +1,21 @@
+// anywidget entry point: wiring only. Each output cell showing the widget gets its own View.
+
+import { View, type Model } from "./view";
+
+function render({ model, el }: { model: Model; el: HTMLElement }) {
+  let view: View;
+  try {
+    view = new View(model, el);
+  } catch (err) {
+    // never a blank widget: say what went wrong
+    const box = document.createElement("pre");
+    box.className = "axw-error";
+    box.style.cssText = "color:#b00020;white-space:pre-wrap;";
+    box.textContent = `axeswidget could not draw this table: ${(err as Error)?.message ?? err}`;
+    el.appendChild(box);
+    return () => box.remove();
+  }
+  return () => view.destroy();
+}
+
+export default { render };
