@@ -65,6 +65,11 @@ export function drawLines(
     t[CODE_MISSING] = layout.laneY;
     return t;
   });
+  let selected = table.n;
+  if (mask) {
+    selected = 0;
+    for (let i = 0; i < table.n; i++) selected += mask[i];
+  }
   const alpha = autoAlpha(table.n);
   const pass = (want: number, colour: string, a: number) => {
     ctx.strokeStyle = colour;
@@ -85,7 +90,7 @@ export function drawLines(
     ctx.stroke();
   };
   if (mask) pass(0, theme.faded, Math.min(0.25, alpha * 0.35));
-  pass(1, theme.line, alpha);
+  pass(1, theme.line, autoAlpha(selected));
   ctx.globalAlpha = 1;
 }
 
@@ -117,7 +122,11 @@ function header(ctx: CanvasRenderingContext2D, name: string, x: number, max: num
       return;
     }
   }
-  const cut = Math.max(name.lastIndexOf("_", Math.ceil(name.length / 2) + 4), name.lastIndexOf(" ", Math.ceil(name.length / 2) + 4));
+  // split at the separator nearest the middle
+  let cut = -1;
+  for (let i = 1; i < name.length - 1; i++) {
+    if ((name[i] === "_" || name[i] === " ") && (cut < 0 || Math.abs(i - name.length / 2) < Math.abs(cut - name.length / 2))) cut = i;
+  }
   if (cut > 0) {
     ctx.fillText(fitText(ctx, name.slice(0, cut + (name[cut] === "_" ? 1 : 0)), max), x, 8);
     ctx.fillText(fitText(ctx, name.slice(cut + 1), max), x, 20);

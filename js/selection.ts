@@ -25,7 +25,7 @@ export function tidy(ranges: Ranges): Ranges {
 
 /**
  * Preview mask from the wire codes: a code counts as inside a span when the value it stands for is.
- * Exact to the quantisation step; the kernel's mask replaces it once the kernel has answered.
+ * Exact up to half a quantisation step at the ends; the kernel's mask replaces it once it has answered.
  */
 export function previewMask(table: Table, ranges: Ranges): { mask: Uint8Array; count: number } {
   const n = table.n;
@@ -37,8 +37,10 @@ export function previewMask(table: Table, ranges: Ranges): { mask: Uint8Array; c
     // inclusive code interval per span
     const ivals = spans.map(([lo, hi]) => {
       if (!(half > 0)) return lo <= axis.lo && axis.lo <= hi ? [0, CODE_MAX] : [1, 0];
-      const a = Math.ceil(((lo * 0.5 - axis.lo * 0.5) / half) * CODE_MAX - 1e-6);
-      const b = Math.floor(((hi * 0.5 - axis.lo * 0.5) / half) * CODE_MAX + 1e-6);
+      // rounding is monotone, so every value inside [lo, hi] has a code inside [a, b]: the preview
+      // can only err by including values within half a quantisation step outside the ends
+      const a = Math.round(((lo * 0.5 - axis.lo * 0.5) / half) * CODE_MAX);
+      const b = Math.round(((hi * 0.5 - axis.lo * 0.5) / half) * CODE_MAX);
       return [Math.max(0, a), Math.min(CODE_MAX, b)];
     });
     const codes = axis.codes;

@@ -137,15 +137,15 @@ def encode_frame(frame: pd.DataFrame, axes=None) -> dict[str, Column]:
                 raise ColumnError(f"column name {name!r} appears more than once; rename the duplicates")
             else:
                 chosen.append((label, name))
-        if skipped:
-            warnings.warn(
-                f"axeswidget: skipped columns that are not numeric: {', '.join(map(repr, skipped))}",
-                stacklevel=3,
-            )
         if not chosen:
             raise ColumnError(
                 "the table has no numeric column to draw"
                 + (f" (columns: {', '.join(map(repr, names))})" if names else " (it has no columns)")
+            )
+        if skipped:
+            warnings.warn(
+                f"axeswidget: skipped columns that are not numeric: {', '.join(map(repr, skipped))}",
+                stacklevel=3,
             )
     else:
         if isinstance(axes, str):

@@ -1,0 +1,147 @@
+"""Level-2 browser harness: a real JupyterLab (or Notebook 7) server on 127.0.0.1 driven by Playwright.
+
+Used to prove the round trip page -> kernel -> page with the real anywidget/ipywidgets machinery.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import secrets
+import shutil
+import signal
+import socket
+import subprocess
+import sys
+import tempfile
+import time
+import urllib.request
+from pathlib import Path
+
+DIRECT = urllib.request.build_opener(urllib.request.ProxyHandler({}))
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+class JupyterServer:
+    """`jupyter lab` with private config/settings/runtime folders, a random token and port."""
+
+    def __init__(self):
+        self.root = Path(tempfile.mkdtemp(prefix="axw-lab-"))
+        self.private = Path(tempfile.mkdtemp(prefix="axw-labcfg-"))
+        self.port = _free_port()
+        self.token = secrets.token_hex(16)
+        env = dict(os.environ)
+        for var, sub in [
+            ("JUPYTER_CONFIG_DIR", "config"),
+            ("JUPYTERLAB_SETTINGS_DIR", "settings"),
+            ("JUPYTERLAB_WORKSPACES_DIR", "workspaces"),
+            ("JUPYTER_RUNTIME_DIR", "runtime"),
+        ]:
+            (self.private / sub).mkdir()
+            env[var] = str(self.private / sub)
+        notif = self.private / "settings" / "@jupyterlab" / "apputils-extension"
+        notif.mkdir(parents=True)
+        (notif / "notification.jupyterlab-settings").write_text(
+            json.dumps({"fetchNews": "false", "checkForUpdates": False})
+        )
+        env["NO_PROXY"] = "127.0.0.1,localhost"
+        jupyter = Path(sys.executable).parent / "jupyter"
+        cmd = [
+            str(jupyter),
+            "lab",
+            "--no-browser",
+            "--ip=127.0.0.1",
+            f"--port={self.port}",
+            "--allow-root",
+            f"--ServerApp.token={self.token}",
+            f"--ServerApp.root_dir={self.root}",
+            "--LabApp.expose_app_in_browser=True",
+            '--ServerApp.tornado_settings={"websocket_max_message_size": 209715200}',
+        ]
+        self.log = open(self.private / "server.log", "w")  # noqa: SIM115
+        self.proc = subprocess.Popen(
+            cmd, env=env, stdout=self.log, stderr=subprocess.STDOUT, start_new_session=True
+        )
+        self.base = f"http://127.0.0.1:{self.port}"
+        deadline = time.time() + 60
+        while time.time() < deadline:
+            try:
+                DIRECT.open(f"{self.base}/api/status?token={self.token}", timeout=2).read()
+                return
+            except Exception:
+                if self.proc.poll() is not None:
+                    break
+                time.sleep(0.3)
+        raise RuntimeError("JupyterLab did not start:\n" + (self.private / "server.log").read_text()[-3000:])
+
+    def write_notebook(self, name: str, cells: list[str]) -> str:
+        nb = {
+            "cells": [
+                {"cell_type": "code", "execution_count": None, "metadata": {}, "outputs": [], "source": src}
+                for src in cells
+            ],
+            "metadata": {
+                "kernelspec": {"display_name": "Python 3", "language": "python", "name": "python3"},
+                "language_info": {"name": "python"},
+            },
+            "nbformat": 4,
+            "nbformat_minor": 5,
+        }
+        (self.root / name).write_text(json.dumps(nb))
+        return name
+
+    def url(self, path: str) -> str:
+        return f"{self.base}/{path}{'&' if '?' in path else '?'}token={self.token}"
+
+    def close(self):
+        try:
+            req = urllib.request.Request(
+                f"{self.base}/api/shutdown", method="POST", headers={"Authorization": f"token {self.token}"}
+            )
+            DIRECT.open(req, timeout=5)
+            self.proc.wait(timeout=10)
+        except Exception:
+            pass
+        if self.proc.poll() is None:
+            os.killpg(self.proc.pid, signal.SIGTERM)
+            try:
+                self.proc.wait(timeout=10)
+            except subprocess.TimeoutExpired:
+                os.killpg(self.proc.pid, signal.SIGKILL)
+        self.log.close()
+        shutil.rmtree(self.root, ignore_errors=True)
+        shutil.rmtree(self.private, ignore_errors=True)
+
+
+class LabNotebook:
+    """A notebook open in JupyterLab, with helpers to run cells and read outputs."""
+
+    def __init__(self, page, server: JupyterServer, name: str):
+        self.page = page
+        page.goto(server.url(f"lab/tree/{name}?reset"))
+        page.wait_for_selector(".jp-NotebookPanel .jp-Cell", timeout=60_000)
+        page.wait_for_function(
+            "() => [...document.querySelectorAll('.jp-StatusBar-TextItem')]"
+            ".some(e => /\\| Idle/.test(e.textContent))",
+            timeout=60_000,
+        )
+
+    def cell(self, i: int):
+        return self.page.locator(".jp-NotebookPanel .jp-Notebook .jp-Cell").nth(i)
+
+    def run(self, i: int, timeout: float = 60_000):
+        cell = self.cell(i)
+        cell.locator(".jp-InputArea-editor").click()
+        self.page.keyboard.press("Shift+Enter")
+        prompt = cell.locator(".jp-InputPrompt")
+        self.page.wait_for_function(
+            "(el) => /\\[\\d+\\]/.test(el.textContent)", arg=prompt.element_handle(), timeout=timeout
+        )
+
+    def output_text(self, i: int) -> str:
+        return self.cell(i).locator(".jp-OutputArea").inner_text()
