@@ -138,6 +138,12 @@ export class View {
     this.dragging = !final;
     this.preview = previewMask(this.table, r);
     this.invalidate(true);
+    if (final && this.model.get("_standalone")) {
+      // no kernel behind this page (an exported file): the page's own mask is the answer
+      this.kernelMask = this.preview.mask;
+      this.kernelCount = this.preview.count;
+      this.preview = null;
+    }
     if (final) {
       this.sync();
       return;
