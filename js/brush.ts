@@ -1,91 +1,128 @@
-// Pointer gestures on the chart: create, move, resize and clear ranges on an axis.
+// Pointer gestures on the chart.
 //
-//   drag on empty axis space        -> a new range (several per axis are allowed; overlaps merge)
+// Number, date and duration axes:
+//   drag on empty axis space        -> a new range (several per axis combine with OR; overlaps merge)
 //   drag inside a range             -> move it
 //   drag a range's end (±5 px)      -> resize it
-//   click on empty axis space       -> clear every range on that axis
 //   double-click a range            -> remove that range only
+// Category axes:
+//   click a band                    -> pick / unpick that category
+//   drag across bands               -> pick every band swept over
+// Every axis:
+//   click the box below the axis    -> pick / unpick the missing-values lane
+//   click on empty axis space       -> clear everything picked on that axis
 
 import { axisAt, type Layout } from "./layout";
 import type { AxisScale } from "./scales";
-import { tidy, type Ranges, type Span } from "./selection";
+import { cloneSel, emptyAxis, isEmpty, tidy, type Sel } from "./selection";
 
 export interface BrushHost {
   layout(): Layout;
   scales(): AxisScale[];
-  ranges(): Ranges;
-  /** ranges while a gesture is in progress */
-  preview(r: Ranges): void;
-  /** final ranges at the end of a gesture */
-  commit(r: Ranges): void;
+  selection(): Sel;
+  /** selection while a gesture is in progress */
+  preview(s: Sel): void;
+  /** final selection at the end of a gesture */
+  commit(s: Sel): void;
 }
 
-type Hit =
-  | { kind: "create"; axis: string; index: number }
+export type Hit =
+  | { kind: "create" | "lane" | "empty"; axis: string; index: number }
+  | { kind: "band"; axis: string; index: number; band: number }
   | { kind: "move" | "lo" | "hi"; axis: string; index: number; span: number };
 
 const END_PX = 5;
 const CLICK_PX = 3;
 
-function clone(r: Ranges): Ranges {
-  const out: Ranges = {};
-  for (const [k, v] of Object.entries(r)) out[k] = v.map((s) => [s[0], s[1]] as Span);
-  return out;
-}
-
 /** What the pointer at (x, y) would act on. */
 export function hitTest(host: BrushHost, x: number, y: number): Hit | null {
   const layout = host.layout();
   const index = axisAt(layout, x);
-  if (index < 0 || y < layout.top - 8 || y > layout.bottom + 8) return null;
-  const sc = host.scales()[index];
+  if (index < 0) return null;
   const name = layout.slots[index].name;
-  const spans = host.ranges()[name] ?? [];
+  if (Math.abs(y - layout.laneY) <= layout.laneHalf + 3) return { kind: "lane", axis: name, index };
+  if (y < layout.top - 8 || y > layout.bottom + 8) return null;
+  const sc = host.scales()[index];
+  if (sc.categorical) {
+    const band = sc.bandAt(y);
+    return band >= 0 ? { kind: "band", axis: name, index, band } : { kind: "empty", axis: name, index };
+  }
+  const spans = host.selection()[name]?.spans ?? [];
+  const px = spans.map(([lo, hi]) => [sc.toPixel(hi), sc.toPixel(lo)]);
   // ends first (they may sit just outside a thin band), then bodies
   for (let s = 0; s < spans.length; s++) {
-    const yHi = sc.toPixel(spans[s][1]);
-    const yLo = sc.toPixel(spans[s][0]);
-    if (Math.abs(y - yHi) <= END_PX && Math.abs(yLo - yHi) > 2 * END_PX - 1) return { kind: "hi", axis: name, index, span: s };
-    if (Math.abs(y - yLo) <= END_PX && Math.abs(yLo - yHi) > 2 * END_PX - 1) return { kind: "lo", axis: name, index, span: s };
+    const [yHi, yLo] = px[s];
+    const room = Math.abs(yLo - yHi) > 2 * END_PX - 1;
+    if (room && Math.abs(y - yHi) <= END_PX) return { kind: "hi", axis: name, index, span: s };
+    if (room && Math.abs(y - yLo) <= END_PX) return { kind: "lo", axis: name, index, span: s };
   }
   for (let s = 0; s < spans.length; s++) {
-    const yHi = sc.toPixel(spans[s][1]);
-    const yLo = sc.toPixel(spans[s][0]);
+    const [yHi, yLo] = px[s];
     if (y >= Math.min(yHi, yLo) - 2 && y <= Math.max(yHi, yLo) + 2) return { kind: "move", axis: name, index, span: s };
   }
   return { kind: "create", axis: name, index };
 }
 
-const CURSOR: Record<string, string> = { create: "crosshair", move: "grab", lo: "ns-resize", hi: "ns-resize" };
+const CURSOR: Record<string, string> = {
+  create: "crosshair",
+  move: "grab",
+  lo: "ns-resize",
+  hi: "ns-resize",
+  band: "pointer",
+  lane: "pointer",
+  empty: "default",
+};
 
 export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
-  let drag: { hit: Hit; y0: number; start: Ranges; moved: boolean; span: number } | null = null;
+  let drag: { hit: Hit; y0: number; start: Sel; moved: boolean } | null = null;
 
   const local = (e: PointerEvent | MouseEvent) => {
     const r = canvas.getBoundingClientRect();
     return { x: e.clientX - r.left, y: e.clientY - r.top };
   };
 
-  const current = (e: PointerEvent): Ranges => {
-    if (!drag) return host.ranges();
-    const { y } = local(e);
-    const sc = host.scales()[drag.hit.index];
-    const out = clone(drag.start);
-    const spans = (out[drag.hit.axis] ??= []);
-    const hit = drag.hit;
+  /** The selection the drag in progress describes, with the pointer at y. */
+  const dragged = (y: number): Sel => {
+    const d = drag!;
+    const hit = d.hit;
+    const sc = host.scales()[hit.index];
+    const out = cloneSel(d.start);
+    const s = (out[hit.axis] ??= emptyAxis());
     const v = sc.toValue(y);
-    if (hit.kind === "create") {
-      const v0 = sc.toValue(drag.y0);
-      spans[drag.span] = [Math.min(v0, v), Math.max(v0, v)];
+    if (hit.kind === "band") {
+      const a = sc.bandAt(d.y0);
+      let b = sc.bandAt(y);
+      if (b < 0) b = y < d.y0 ? sc.bands.length - 1 : 0;
+      for (let c = Math.min(a, b); c <= Math.max(a, b); c++) if (!s.bands.includes(c)) s.bands.push(c);
+    } else if (hit.kind === "create") {
+      const v0 = sc.toValue(d.y0);
+      s.spans.push([Math.min(v0, v), Math.max(v0, v)]);
     } else if (hit.kind === "move") {
-      const [lo, hi] = drag.start[hit.axis][hit.span];
-      let delta = v - sc.toValue(drag.y0);
-      delta = Math.min(Math.max(delta, sc.axis.lo - lo), sc.axis.hi - hi);
-      spans[hit.span] = [lo + delta, hi + delta];
-    } else {
-      const [lo, hi] = drag.start[hit.axis][hit.span];
-      spans[hit.span] = hit.kind === "hi" ? [Math.min(lo, v), Math.max(lo, v)] : [Math.min(v, hi), Math.max(v, hi)];
+      const [lo, hi] = d.start[hit.axis].spans[hit.span];
+      const finite = isFinite(lo) && isFinite(hi);
+      let delta = v - sc.toValue(d.y0);
+      if (finite) delta = Math.min(Math.max(delta, sc.axis.lo - lo), sc.axis.hi - hi);
+      s.spans[hit.span] = [lo + delta, hi + delta];
+    } else if (hit.kind === "lo" || hit.kind === "hi") {
+      const [lo, hi] = d.start[hit.axis].spans[hit.span];
+      s.spans[hit.span] = hit.kind === "hi" ? [Math.min(lo, v), Math.max(lo, v)] : [Math.min(v, hi), Math.max(v, hi)];
     }
+    return out;
+  };
+
+  /** The selection after a click (no drag). */
+  const clicked = (): Sel => {
+    const d = drag!;
+    const hit = d.hit;
+    const out = cloneSel(d.start);
+    const s = (out[hit.axis] ??= emptyAxis());
+    if (hit.kind === "lane") s.lane = !s.lane;
+    else if (hit.kind === "band") {
+      const at = s.bands.indexOf(hit.band);
+      if (at >= 0) s.bands.splice(at, 1);
+      else s.bands.push(hit.band);
+    } else if (hit.kind === "create" || hit.kind === "empty") delete out[hit.axis];
+    if (isEmpty(out[hit.axis])) delete out[hit.axis];
     return out;
   };
 
@@ -96,34 +133,26 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
     if (!hit) return;
     e.preventDefault();
     canvas.setPointerCapture?.(e.pointerId);
-    const start = clone(host.ranges());
-    const span = hit.kind === "create" ? (start[hit.axis]?.length ?? 0) : hit.span;
-    drag = { hit, y0: y, start, moved: false, span };
+    drag = { hit, y0: y, start: cloneSel(host.selection()), moved: false };
     canvas.style.cursor = hit.kind === "move" ? "grabbing" : CURSOR[hit.kind];
   };
 
   const move = (e: PointerEvent) => {
+    const { x, y } = local(e);
     if (!drag) {
-      const { x, y } = local(e);
       const hit = hitTest(host, x, y);
       canvas.style.cursor = hit ? CURSOR[hit.kind] : "default";
       return;
     }
-    if (!drag.moved && Math.abs(local(e).y - drag.y0) < CLICK_PX) return;
+    if (!drag.moved && Math.abs(y - drag.y0) < CLICK_PX) return;
+    if (drag.hit.kind === "lane" || drag.hit.kind === "empty") return;
     drag.moved = true;
-    host.preview(current(e));
+    host.preview(dragged(y));
   };
 
   const up = (e: PointerEvent) => {
     if (!drag) return;
-    const d = drag;
-    let result: Ranges;
-    if (!d.moved) {
-      result = clone(d.start);
-      if (d.hit.kind === "create") delete result[d.hit.axis]; // a click on empty axis space clears it
-    } else {
-      result = current(e);
-    }
+    const result = drag.moved ? dragged(local(e).y) : clicked();
     drag = null;
     canvas.style.cursor = "default";
     host.commit(tidy(result));
@@ -132,11 +161,11 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
   const dbl = (e: MouseEvent) => {
     const { x, y } = local(e);
     const hit = hitTest(host, x, y);
-    if (!hit || hit.kind === "create") return;
-    const r = clone(host.ranges());
-    r[hit.axis].splice(hit.span, 1);
-    if (!r[hit.axis].length) delete r[hit.axis];
-    host.commit(r);
+    if (!hit || hit.kind !== "move") return;
+    const out = cloneSel(host.selection());
+    out[hit.axis].spans.splice(hit.span, 1);
+    if (isEmpty(out[hit.axis])) delete out[hit.axis];
+    host.commit(tidy(out));
   };
 
   canvas.addEventListener("pointerdown", down);

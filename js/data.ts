@@ -1,20 +1,30 @@
 // Decode the kernel's `table` trait into typed columns, without copying the binary buffers.
 
-/** Largest quantisation code; codes 0..CODE_MAX map linearly onto an axis's [lo, hi]. */
+/** Largest quantisation code; codes 0..CODE_MAX map linearly (or logarithmically) onto [lo, hi]. */
 export const CODE_MAX = 65534;
 /** Code reserved for a missing value. */
 export const CODE_MISSING = 65535;
 
-export type Kind = "number" | "integer";
+export type Kind = "number" | "integer" | "category" | "boolean" | "datetime" | "timedelta";
 
 export interface AxisData {
   name: string;
   kind: Kind;
+  /** domain in axis units: numbers; nanoseconds for datetime and timedelta */
   lo: number;
   hi: number;
+  log: boolean;
+  /** time zone of a tz-aware datetime axis */
+  tz: string | null;
   missing: number;
+  /** count of -inf and +inf values (drawn pinned to the ends) */
+  inf: [number, number];
   /** the distinct values of a discrete axis, when few */
   values?: number[];
+  /** category bands, bottom to top, with row counts; `rest` lumps rarer labels into one band */
+  labels?: string[];
+  counts?: number[];
+  rest?: { labels: number; rows: number };
   /** one code per row */
   codes: Uint16Array;
 }
@@ -28,10 +38,16 @@ export interface Table {
 interface RawColumn {
   name: string;
   kind: Kind;
-  lo: number;
-  hi: number;
+  lo?: number;
+  hi?: number;
+  log?: boolean;
+  tz?: string | null;
   missing: number;
+  inf?: [number, number];
   values?: number[];
+  labels?: string[];
+  counts?: number[];
+  rest?: { labels: number; rows: number };
   codes: DataView | ArrayBuffer | Uint8Array;
 }
 
@@ -39,6 +55,8 @@ export interface RawTable {
   n?: number;
   columns?: RawColumn[];
 }
+
+export const isCategorical = (a: AxisData) => a.kind === "category" || a.kind === "boolean";
 
 function asUint16(buf: DataView | ArrayBuffer | Uint8Array, name: string, n: number): Uint16Array {
   let out: Uint16Array;
@@ -51,22 +69,44 @@ function asUint16(buf: DataView | ArrayBuffer | Uint8Array, name: string, n: num
 
 export function decodeTable(raw: RawTable | null | undefined): Table {
   const n = raw?.n ?? 0;
-  const axes = (raw?.columns ?? []).map((c) => ({
+  const axes: AxisData[] = (raw?.columns ?? []).map((c) => ({
     name: c.name,
     kind: c.kind,
-    lo: c.lo,
-    hi: c.hi,
+    lo: c.lo ?? 0,
+    hi: c.hi ?? 1,
+    log: !!c.log,
+    tz: c.tz ?? null,
     missing: c.missing,
+    inf: c.inf ?? [0, 0],
     values: c.values,
+    labels: c.labels,
+    counts: c.counts,
+    rest: c.rest,
     codes: asUint16(c.codes, c.name, n),
   }));
   return { n, axes, byName: new Map(axes.map((a) => [a.name, a])) };
 }
 
-/** The data value a code stands for (approximate: the kernel holds the exact values). */
-export function codeToValue(axis: AxisData, code: number): number {
-  if (code === CODE_MISSING) return NaN;
-  return axis.lo + (code / CODE_MAX) * (axis.hi * 0.5 - axis.lo * 0.5) * 2;
+/** Number of bands on a category axis (the shared "rest" band included). */
+export function bandCount(a: AxisData): number {
+  return (a.labels?.length ?? 0) + (a.rest ? 1 : 0);
+}
+
+/** Position 0..1 of a value along a numeric axis (log axes in log space); NaN for a zero-width domain. */
+export function fraction(a: AxisData, v: number): number {
+  if (a.log) {
+    const l0 = Math.log(a.lo);
+    const span = Math.log(a.hi) - l0;
+    return span > 0 ? (Math.log(Math.max(v, Number.MIN_VALUE)) - l0) / span : NaN;
+  }
+  const half = a.hi * 0.5 - a.lo * 0.5;
+  return half > 0 ? (v * 0.5 - a.lo * 0.5) / half : NaN;
+}
+
+/** The value at position f (0..1) of a numeric axis. */
+export function valueAt(a: AxisData, f: number): number {
+  if (a.log) return Math.exp(Math.log(a.lo) + f * (Math.log(a.hi) - Math.log(a.lo)));
+  return a.lo + f * (a.hi * 0.5 - a.lo * 0.5) * 2;
 }
 
 /** Unpack the kernel's bit-packed mask (little bit order) into one byte per row. */
@@ -74,5 +114,18 @@ export function unpackMask(bits: DataView | null | undefined, n: number): Uint8A
   if (!bits || bits.byteLength * 8 < n) return null;
   const out = new Uint8Array(n);
   for (let i = 0; i < n; i++) out[i] = (bits.getUint8(i >> 3) >> (i & 7)) & 1;
+  return out;
+}
+
+/** A deterministic spread 0..1 per row, so that lines inside a category band stay apart. */
+export function rowSpread(n: number): Float32Array {
+  const out = new Float32Array(n);
+  for (let i = 0; i < n; i++) {
+    let h = Math.imul(i ^ 0x9e3779b9, 0x85ebca6b);
+    h ^= h >>> 13;
+    h = Math.imul(h, 0xc2b2ae35);
+    h ^= h >>> 16;
+    out[i] = (h >>> 0) / 4294967296;
+  }
   return out;
 }

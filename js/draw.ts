@@ -1,9 +1,9 @@
-// Canvas painting: the lines layer and the overlay (axes, ticks, headers, ranges).
+// Canvas painting: the lines layer and the overlay (axes, ticks, headers, lanes, selections).
 
 import { CODE_MISSING, type Table } from "./data";
 import type { Layout } from "./layout";
 import { AxisScale, formatValue } from "./scales";
-import type { Ranges } from "./selection";
+import type { Sel } from "./selection";
 
 export interface Theme {
   fg: string;
@@ -26,7 +26,7 @@ export function readTheme(el: Element): Theme {
     bg: v("--jp-layout-color0", "#ffffff"),
     line: "#0072B2", // Okabe–Ito blue
     faded: v("--jp-ui-font-color3", "#a0a0a0"),
-    band: "rgba(230, 159, 0, 0.22)", // Okabe–Ito orange, translucent
+    band: "rgba(230, 159, 0, 0.24)", // Okabe–Ito orange, translucent
     bandEdge: "#C98A00",
     font: v("--jp-ui-font-family", "system-ui, -apple-system, 'Segoe UI', sans-serif"),
   };
@@ -36,9 +36,32 @@ export function scalesFor(table: Table, layout: Layout): AxisScale[] {
   return layout.slots.map((s) => new AxisScale(table.byName.get(s.name)!, layout.top, layout.bottom));
 }
 
-/** Opacity of one line, from the number of rows: dense tables get fainter lines. */
+/** Opacity of one line, from the number of rows drawn: dense tables get fainter lines. */
 export function autoAlpha(n: number): number {
   return Math.min(0.85, Math.max(0.02, 14 / Math.sqrt(Math.max(1, n))));
+}
+
+/**
+ * Per axis, two lookup tables over the 65536 wire codes: a row's y is `base[code] + spread[row] *
+ * height[code]`. Numeric axes have height 0; category bands spread their rows over the band;
+ * the missing code maps to the lane.
+ */
+export function rowPlacement(scales: AxisScale[], layout: Layout): { base: Float32Array; height: Float32Array }[] {
+  return scales.map((sc) => {
+    const base = new Float32Array(65536);
+    const height = new Float32Array(65536);
+    if (sc.categorical) {
+      sc.bands.forEach((b, c) => {
+        const padding = Math.min(2, (b.y1 - b.y0) / 4);
+        base[c] = b.y0 + padding;
+        height[c] = Math.max(0, b.y1 - b.y0 - 2 * padding);
+      });
+    } else {
+      for (let c = 0; c < 65535; c++) base[c] = sc.codePixel(c);
+    }
+    base[CODE_MISSING] = layout.laneY;
+    return { base, height };
+  });
 }
 
 /**
@@ -49,38 +72,36 @@ export function drawLines(
   ctx: CanvasRenderingContext2D,
   table: Table,
   layout: Layout,
+  scales: AxisScale[],
+  spread: Float32Array,
   mask: Uint8Array | null,
   theme: Theme,
 ): void {
   ctx.clearRect(0, 0, layout.width, layout.height);
   const k = layout.slots.length;
   if (k === 0 || table.n === 0) return;
-  const scales = scalesFor(table, layout);
   const codes = layout.slots.map((s) => table.byName.get(s.name)!.codes);
   const xs = layout.slots.map((s) => s.x);
-  // pixel of each code per axis, precomputed once (65536 entries; missing -> lane)
-  const lut = scales.map((sc) => {
-    const t = new Float32Array(65536);
-    for (let c = 0; c < 65535; c++) t[c] = sc.codePixel(c);
-    t[CODE_MISSING] = layout.laneY;
-    return t;
-  });
+  const place = rowPlacement(scales, layout);
   let selected = table.n;
   if (mask) {
     selected = 0;
     for (let i = 0; i < table.n; i++) selected += mask[i];
   }
-  const alpha = autoAlpha(table.n);
-  const pass = (want: number, colour: string, a: number) => {
+  const y = (a: number, i: number) => {
+    const c = codes[a][i];
+    return place[a].base[c] + spread[i] * place[a].height[c];
+  };
+  const pass = (want: number, colour: string, alpha: number) => {
     ctx.strokeStyle = colour;
-    ctx.globalAlpha = a;
+    ctx.globalAlpha = alpha;
     ctx.lineWidth = 1;
     let inPath = 0;
     ctx.beginPath();
     for (let i = 0; i < table.n; i++) {
       if ((mask ? mask[i] : 1) !== want) continue;
-      ctx.moveTo(xs[0], lut[0][codes[0][i]]);
-      for (let a2 = 1; a2 < k; a2++) ctx.lineTo(xs[a2], lut[a2][codes[a2][i]]);
+      ctx.moveTo(xs[0], y(0, i));
+      for (let a = 1; a < k; a++) ctx.lineTo(xs[a], y(a, i));
       if (++inPath === 2000) {
         ctx.stroke();
         ctx.beginPath();
@@ -89,7 +110,7 @@ export function drawLines(
     }
     ctx.stroke();
   };
-  if (mask) pass(0, theme.faded, Math.min(0.25, alpha * 0.35));
+  if (mask) pass(0, theme.faded, Math.min(0.25, autoAlpha(table.n) * 0.35));
   pass(1, theme.line, autoAlpha(selected));
   ctx.globalAlpha = 1;
 }
@@ -113,7 +134,7 @@ function label(ctx: CanvasRenderingContext2D, text: string, x: number, y: number
   ctx.fillText(text, x, y);
 }
 
-/** Axis name in at most two lines (split at "_" or a space), shrinking the font before truncating. */
+/** Axis name in at most two lines (split at the "_" or space nearest the middle), then truncated. */
 function header(ctx: CanvasRenderingContext2D, name: string, x: number, max: number, theme: Theme) {
   for (const size of [12, 11, 10]) {
     ctx.font = `600 ${size}px ${theme.font}`;
@@ -122,7 +143,6 @@ function header(ctx: CanvasRenderingContext2D, name: string, x: number, max: num
       return;
     }
   }
-  // split at the separator nearest the middle
   let cut = -1;
   for (let i = 1; i < name.length - 1; i++) {
     if ((name[i] === "_" || name[i] === " ") && (cut < 0 || Math.abs(i - name.length / 2) < Math.abs(cut - name.length / 2))) cut = i;
@@ -135,45 +155,97 @@ function header(ctx: CanvasRenderingContext2D, name: string, x: number, max: num
   ctx.fillText(fitText(ctx, name, max), x, 14);
 }
 
-const KIND_MARK: Record<string, string> = { number: "num", integer: "int" };
+const KIND_MARK: Record<string, string> = {
+  number: "num",
+  integer: "int",
+  category: "cat",
+  boolean: "y/n",
+  datetime: "date",
+  timedelta: "dur",
+};
 
-/** Axes, ticks, headers, missing lanes and range bands. */
+/** Axes, ticks, headers, missing lanes and the selection. */
 export function drawOverlay(
   ctx: CanvasRenderingContext2D,
-  table: Table,
   layout: Layout,
-  ranges: Ranges,
+  scales: AxisScale[],
+  sel: Sel,
   theme: Theme,
 ): void {
   ctx.clearRect(0, 0, layout.width, layout.height);
-  const scales = scalesFor(table, layout);
   const k = layout.slots.length;
   const gap = k > 1 ? layout.slots[1].x - layout.slots[0].x : layout.width;
   ctx.textBaseline = "middle";
   layout.slots.forEach((slot, i) => {
     const sc = scales[i];
     const axis = sc.axis;
+    const s = sel[slot.name];
     const x = Math.round(slot.x) + 0.5;
-    // axis line
     ctx.strokeStyle = theme.fg;
-    ctx.globalAlpha = 0.9;
-    ctx.lineWidth = 1;
-    ctx.beginPath();
-    ctx.moveTo(x, layout.top);
-    ctx.lineTo(x, layout.bottom);
-    ctx.stroke();
-    // ticks, labelled on the left
-    ctx.font = `10px ${theme.font}`;
-    ctx.textAlign = "right";
     ctx.fillStyle = theme.muted;
-    const ticks = sc.ticks();
-    for (const v of ticks.values) {
-      const y = Math.round(sc.toPixel(v)) + 0.5;
+    ctx.lineWidth = 1;
+    ctx.font = `10px ${theme.font}`;
+    if (sc.categorical) {
+      // bands: a bar per category on the axis, its label on the left
+      ctx.textAlign = "right";
+      sc.bands.forEach((b, code) => {
+        const picked = s?.bands.includes(code);
+        ctx.fillStyle = picked ? theme.band : theme.fg;
+        ctx.globalAlpha = picked ? 1 : 0.16;
+        ctx.fillRect(x - (picked ? 8 : 3), b.y0, picked ? 16 : 6, b.y1 - b.y0);
+        if (picked) {
+          ctx.strokeStyle = theme.bandEdge;
+          ctx.strokeRect(x - 8, b.y0, 16, b.y1 - b.y0);
+        }
+        ctx.globalAlpha = 1;
+        if (b.y1 - b.y0 >= 9 || sc.bands.length <= 12) {
+          ctx.fillStyle = picked ? theme.fg : theme.muted;
+          ctx.font = `${picked ? "600 " : ""}10px ${theme.font}`;
+          const room = i === 0 ? x - 10 : Math.max(30, gap * 0.55);
+          label(ctx, fitText(ctx, sc.bandLabel(code), room), x - 7, (b.y0 + b.y1) / 2, theme);
+        }
+      });
+    } else {
+      ctx.globalAlpha = 0.9;
       ctx.beginPath();
-      ctx.moveTo(x - 4, y);
-      ctx.lineTo(x, y);
+      ctx.moveTo(x, layout.top);
+      ctx.lineTo(x, layout.bottom);
       ctx.stroke();
-      label(ctx, formatValue(v, ticks.step), x - 6, y, theme);
+      ctx.textAlign = "right";
+      const ticks = sc.ticks();
+      ticks.values.forEach((v, t) => {
+        const y = Math.round(sc.toPixel(v)) + 0.5;
+        ctx.beginPath();
+        ctx.moveTo(x - 4, y);
+        ctx.lineTo(x, y);
+        ctx.stroke();
+        label(ctx, ticks.labels[t], x - 6, y, theme);
+      });
+      // ±inf pinned to the ends, with a marker
+      const [neg, pos] = axis.inf;
+      ctx.textAlign = "left";
+      if (pos) label(ctx, `+∞ ${pos}`, x + 6, layout.top - 6, theme);
+      if (neg) label(ctx, `−∞ ${neg}`, x + 6, layout.bottom + 8, theme);
+      ctx.globalAlpha = 1;
+      for (const [lo, hi] of s?.spans ?? []) {
+        const yTop = Math.max(layout.top - 2, sc.toPixel(hi));
+        const yBot = Math.min(layout.bottom + 2, sc.toPixel(lo));
+        ctx.fillStyle = theme.band;
+        ctx.fillRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
+        ctx.strokeStyle = theme.bandEdge;
+        ctx.strokeRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
+        ctx.fillStyle = theme.fg;
+        ctx.font = `600 10px ${theme.font}`;
+        const hiText = hi === Infinity ? "▲ open" : sc.format(hi);
+        const loText = lo === -Infinity ? "▼ open" : sc.format(lo);
+        // end values on the right of the axis, or on the left where the chart ends
+        const wide = Math.max(ctx.measureText(hiText).width, ctx.measureText(loText).width);
+        const right = x + 11 + wide <= layout.width;
+        ctx.textAlign = right ? "left" : "right";
+        const tx = right ? x + 11 : x - 11;
+        label(ctx, hiText, tx, yTop - 1, theme);
+        label(ctx, loText, tx, yBot + 1, theme);
+      }
     }
     // header: name, and a small marker of the kind
     ctx.globalAlpha = 1;
@@ -183,33 +255,23 @@ export function drawOverlay(
     ctx.font = `9px ${theme.font}`;
     ctx.fillStyle = theme.muted;
     ctx.fillText(KIND_MARK[axis.kind] ?? axis.kind, x, 33);
-    // missing-values lane
-    ctx.strokeStyle = theme.muted;
-    ctx.globalAlpha = axis.missing ? 0.9 : 0.3;
-    ctx.setLineDash([2, 2]);
+    // missing-values lane: a box below the axis, filled when picked
+    const lanePicked = !!s?.lane;
+    ctx.globalAlpha = axis.missing || lanePicked ? 0.95 : 0.3;
+    if (lanePicked) {
+      ctx.fillStyle = theme.band;
+      ctx.fillRect(x - 8, layout.laneY - layout.laneHalf, 16, 2 * layout.laneHalf);
+    }
+    ctx.strokeStyle = lanePicked ? theme.bandEdge : theme.muted;
+    ctx.setLineDash(lanePicked ? [] : [2, 2]);
     ctx.strokeRect(x - 7, layout.laneY - layout.laneHalf, 14, 2 * layout.laneHalf);
     ctx.setLineDash([]);
     if (axis.missing) {
       ctx.textAlign = "left";
-      ctx.fillText(`∅ ${axis.missing}`, x + 10, layout.laneY);
+      ctx.fillStyle = theme.muted;
+      ctx.font = `10px ${theme.font}`;
+      ctx.fillText(`∅ ${formatValue(axis.missing, 1)}`, x + 10, layout.laneY);
     }
     ctx.globalAlpha = 1;
-    // range bands with their end values
-    for (const [lo, hi] of ranges[slot.name] ?? []) {
-      const y0 = sc.toPixel(hi);
-      const y1 = sc.toPixel(lo);
-      const top = Math.max(layout.top - 2, Math.min(y0, y1));
-      const bot = Math.min(layout.bottom + 2, Math.max(y0, y1));
-      ctx.fillStyle = theme.band;
-      ctx.fillRect(x - 8, top, 16, Math.max(2, bot - top));
-      ctx.strokeStyle = theme.bandEdge;
-      ctx.strokeRect(x - 8, top, 16, Math.max(2, bot - top));
-      ctx.fillStyle = theme.fg;
-      ctx.font = `600 10px ${theme.font}`;
-      ctx.textAlign = "left";
-      const endStep = axis.kind === "integer" ? 1 : ticks.step / 10;
-      label(ctx, formatValue(hi, endStep), x + 11, top - 1, theme);
-      label(ctx, formatValue(lo, endStep), x + 11, bot + 1, theme);
-    }
   });
 }

@@ -23,13 +23,15 @@ export const HEADER = 48;
 const FOOTER = 42;
 const SIDE = 64;
 
-export function computeLayout(width: number, height: number, order: string[]): Layout {
+/** `wideLeft`: the first axis carries labels on its left (a category axis) and needs more room. */
+export function computeLayout(width: number, height: number, order: string[], wideLeft = false): Layout {
   const top = HEADER;
   const bottom = Math.max(top + 40, height - FOOTER);
   const laneY = bottom + 24;
   const k = order.length;
-  const inner = Math.max(10, width - 2 * SIDE);
-  const slots = order.map((name, i) => ({ name, x: k === 1 ? width / 2 : SIDE + (i * inner) / (k - 1) }));
+  const left = wideLeft ? SIDE + 36 : SIDE;
+  const inner = Math.max(10, width - left - SIDE);
+  const slots = order.map((name, i) => ({ name, x: k === 1 ? width / 2 : left + (i * inner) / (k - 1) }));
   const gap = k > 1 ? inner / (k - 1) : inner;
   return { width, height, top, bottom, laneY, laneHalf: 7, slots, grab: Math.max(8, Math.min(16, gap / 4)) };
 }

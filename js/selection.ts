@@ -1,71 +1,167 @@
-// The page's view of a selection: ranges per axis in data units, and a preview mask from the codes.
+// The page's view of a selection and its conversion to and from the `ranges` trait.
+//
+// Inside the page every axis's selection is an AxisSel in axis units (numbers; nanoseconds for
+// datetime and timedelta axes; ±Infinity for an open end). The trait holds the kernel's form:
+// [lo, hi] pairs (null = open end; ISO strings for datetimes; seconds for timedeltas), category labels,
+// and null for the missing-values lane.
 
-import { CODE_MAX, CODE_MISSING, type Table } from "./data";
+import { bandCount, CODE_MAX, CODE_MISSING, fraction, isCategorical, type AxisData, type Table } from "./data";
 
 export type Span = [number, number];
-export type Ranges = Record<string, Span[]>;
 
-/** Copy of ranges with spans sorted and overlapping spans on one axis merged. */
-export function tidy(ranges: Ranges): Ranges {
-  const out: Ranges = {};
-  for (const [axis, spans] of Object.entries(ranges)) {
-    const sorted = spans
-      .map(([a, b]) => (a <= b ? [a, b] : [b, a]) as Span)
-      .sort((p, q) => p[0] - q[0]);
+export interface AxisSel {
+  spans: Span[];
+  /** picked band codes on a category axis */
+  bands: number[];
+  /** the missing-values lane is picked */
+  lane: boolean;
+}
+
+export type Sel = Record<string, AxisSel>;
+export type TraitItem = [number | string | null, number | string | null] | string | null;
+export type TraitRanges = Record<string, TraitItem[]>;
+
+export const emptyAxis = (): AxisSel => ({ spans: [], bands: [], lane: false });
+export const isEmpty = (s: AxisSel | undefined) => !s || (!s.spans.length && !s.bands.length && !s.lane);
+
+export function cloneSel(sel: Sel): Sel {
+  const out: Sel = {};
+  for (const [k, v] of Object.entries(sel)) out[k] = { spans: v.spans.map((s) => [s[0], s[1]] as Span), bands: [...v.bands], lane: v.lane };
+  return out;
+}
+
+/** Sorted spans with overlaps merged, bands sorted and unique; empty axes dropped. */
+export function tidy(sel: Sel): Sel {
+  const out: Sel = {};
+  for (const [axis, s] of Object.entries(sel)) {
+    const sorted = s.spans.map(([a, b]) => (a <= b ? [a, b] : [b, a]) as Span).sort((p, q) => p[0] - q[0]);
     const merged: Span[] = [];
-    for (const s of sorted) {
+    for (const sp of sorted) {
       const last = merged[merged.length - 1];
-      if (last && s[0] <= last[1]) last[1] = Math.max(last[1], s[1]);
-      else merged.push([s[0], s[1]]);
+      if (last && sp[0] <= last[1]) last[1] = Math.max(last[1], sp[1]);
+      else merged.push([sp[0], sp[1]]);
     }
-    if (merged.length) out[axis] = merged;
+    const t = { spans: merged, bands: [...new Set(s.bands)].sort((a, b) => a - b), lane: s.lane };
+    if (!isEmpty(t)) out[axis] = t;
   }
   return out;
 }
 
+/** Canonical text of a selection, for equality tests. */
+export function selKey(sel: Sel): string {
+  const t = tidy(sel);
+  return JSON.stringify(Object.keys(t).sort().map((k) => [k, t[k].spans, t[k].bands, t[k].lane]));
+}
+
+// -- trait conversion ------------------------------------------------------------------------------
+function parseTime(iso: string): number {
+  // keep at most milliseconds; a string without an offset is wall-clock time of a naive column (UTC)
+  const m = /^(.*T\d\d:\d\d(?::\d\d)?)(\.\d+)?(Z|[+-]\d\d:?\d\d)?$/.exec(iso);
+  const text = m ? m[1] + (m[2] ? m[2].slice(0, 4) : "") + (m[3] ?? "Z") : iso;
+  return Date.parse(text) * 1e6;
+}
+
+function endToUnits(a: AxisData, v: number | string | null, side: 0 | 1): number {
+  if (v === null || v === undefined) return side === 0 ? -Infinity : Infinity;
+  if (a.kind === "datetime") return parseTime(String(v));
+  if (a.kind === "timedelta") return Number(v) * 1e9;
+  return Number(v);
+}
+
+function unitsToEnd(a: AxisData, v: number): number | string | null {
+  if (!isFinite(v)) return null;
+  if (a.kind === "datetime") {
+    const iso = new Date(Math.round(v / 1e6)).toISOString();
+    return a.tz ? iso : iso.slice(0, -1);
+  }
+  if (a.kind === "timedelta") return Math.round(v / 1e6) / 1e3;
+  if (a.kind === "integer") return Math.round(v);
+  return v;
+}
+
+export function fromTrait(table: Table, raw: TraitRanges | null | undefined): Sel {
+  const out: Sel = {};
+  for (const [name, items] of Object.entries(raw ?? {})) {
+    const a = table.byName.get(name);
+    if (!a || !Array.isArray(items)) continue;
+    const s = emptyAxis();
+    for (const item of items) {
+      if (item === null) s.lane = true;
+      else if (typeof item === "string") {
+        const code = a.labels?.indexOf(item) ?? -1;
+        if (code >= 0) s.bands.push(code);
+      } else if (Array.isArray(item)) s.spans.push([endToUnits(a, item[0], 0), endToUnits(a, item[1], 1)]);
+    }
+    out[name] = s;
+  }
+  return tidy(out);
+}
+
 /**
- * Preview mask from the wire codes: a code counts as inside a span when the value it stands for is.
- * Exact up to half a quantisation step at the ends; the kernel's mask replaces it once it has answered.
+ * The trait form of a selection. Axes whose selection equals the one read from `previous` keep the
+ * previous trait items verbatim, so values the page cannot represent exactly (nanoseconds) survive.
  */
-export function previewMask(table: Table, ranges: Ranges): { mask: Uint8Array; count: number } {
+export function toTrait(table: Table, sel: Sel, previous: TraitRanges | null | undefined): TraitRanges {
+  const out: TraitRanges = {};
+  const prevSel = fromTrait(table, previous);
+  for (const [name, s] of Object.entries(tidy(sel))) {
+    const a = table.byName.get(name);
+    if (!a) continue;
+    if (previous?.[name] && prevSel[name] && selKey({ x: prevSel[name] }) === selKey({ x: s })) {
+      out[name] = previous[name];
+      continue;
+    }
+    const items: TraitItem[] = [];
+    for (const [lo, hi] of s.spans) {
+      // an end dragged onto the end of an axis that holds ±inf values takes them in (open end)
+      const l = lo <= a.lo && a.inf[0] > 0 ? -Infinity : lo;
+      const h = hi >= a.hi && a.inf[1] > 0 ? Infinity : hi;
+      items.push([unitsToEnd(a, l), unitsToEnd(a, h)]);
+    }
+    for (const b of s.bands) if (a.labels && b < a.labels.length) items.push(a.labels[b]);
+    if (s.lane) items.push(null);
+    if (items.length) out[name] = items;
+  }
+  return out;
+}
+
+// -- preview ---------------------------------------------------------------------------------------
+/**
+ * Preview mask from the wire codes. Range ends are rounded to codes (monotone), so every row inside a
+ * range is in the preview; it can only err by taking in values within half a quantisation step outside
+ * an end. The kernel's exact mask replaces it once the kernel has answered.
+ */
+export function previewMask(table: Table, sel: Sel): { mask: Uint8Array; count: number } {
   const n = table.n;
   const mask = new Uint8Array(n).fill(1);
-  for (const [name, spans] of Object.entries(ranges)) {
+  for (const [name, s] of Object.entries(sel)) {
     const axis = table.byName.get(name);
-    if (!axis || spans.length === 0) continue;
-    const half = axis.hi * 0.5 - axis.lo * 0.5;
-    // inclusive code interval per span
-    const ivals = spans.map(([lo, hi]) => {
-      if (!(half > 0)) return lo <= axis.lo && axis.lo <= hi ? [0, CODE_MAX] : [1, 0];
-      // rounding is monotone, so every value inside [lo, hi] has a code inside [a, b]: the preview
-      // can only err by including values within half a quantisation step outside the ends
-      const a = Math.round(((lo * 0.5 - axis.lo * 0.5) / half) * CODE_MAX);
-      const b = Math.round(((hi * 0.5 - axis.lo * 0.5) / half) * CODE_MAX);
-      return [Math.max(0, a), Math.min(CODE_MAX, b)];
-    });
-    const codes = axis.codes;
-    for (let i = 0; i < n; i++) {
-      if (!mask[i]) continue;
-      const c = codes[i];
-      let hit = 0;
-      if (c !== CODE_MISSING) {
-        for (let k = 0; k < ivals.length; k++) {
-          if (c >= ivals[k][0] && c <= ivals[k][1]) {
-            hit = 1;
-            break;
-          }
+    if (!axis || isEmpty(s)) continue;
+    // a lookup table over all 65536 codes: is this code picked?
+    const lut = new Uint8Array(65536);
+    if (isCategorical(axis)) {
+      const k = bandCount(axis);
+      for (const b of s.bands) if (b < k) lut[b] = 1;
+    } else {
+      for (const [lo, hi] of s.spans) {
+        const flo = lo === -Infinity ? 0 : fraction(axis, lo);
+        const fhi = hi === Infinity ? 1 : fraction(axis, hi);
+        let a: number, b: number;
+        if (!isFinite(flo) || !isFinite(fhi)) {
+          // zero-width domain: every present row sits at lo
+          [a, b] = lo <= axis.lo && axis.lo <= hi ? [0, CODE_MAX] : [1, 0];
+        } else {
+          a = Math.max(0, Math.round(flo * CODE_MAX));
+          b = Math.min(CODE_MAX, Math.round(fhi * CODE_MAX));
         }
+        lut.fill(1, a, b + 1);
       }
-      mask[i] = hit;
     }
+    if (s.lane) lut[CODE_MISSING] = 1;
+    const codes = axis.codes;
+    for (let i = 0; i < n; i++) mask[i] &= lut[codes[i]];
   }
   let count = 0;
   for (let i = 0; i < n; i++) count += mask[i];
   return { mask, count };
-}
-
-/** Canonical text of a selection (axes sorted, spans tidied), for equality tests. */
-export function rangesKey(r: Ranges): string {
-  const t = tidy(r);
-  return JSON.stringify(Object.keys(t).sort().map((k) => [k, t[k]]));
 }

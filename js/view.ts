@@ -1,11 +1,11 @@
 // One view of the widget (one per output cell): DOM, canvases, redraw scheduling and syncing.
 
 import { attachBrush } from "./brush";
-import { decodeTable, unpackMask, type RawTable, type Table } from "./data";
+import { decodeTable, isCategorical, rowSpread, unpackMask, type RawTable, type Table } from "./data";
 import { drawLines, drawOverlay, readTheme, scalesFor, type Theme } from "./draw";
 import { computeLayout, type Layout } from "./layout";
 import type { AxisScale } from "./scales";
-import { previewMask, rangesKey, type Ranges } from "./selection";
+import { fromTrait, previewMask, selKey, toTrait, type Sel, type TraitRanges } from "./selection";
 
 /** The slice of the anywidget model API that the view uses (a stand-in can provide it in tests). */
 export interface Model {
@@ -24,9 +24,10 @@ export class View {
   private stage: HTMLDivElement;
   private linesCanvas: HTMLCanvasElement;
   private overlayCanvas: HTMLCanvasElement;
-  private table: Table;
+  private table!: Table;
   private order: string[] = [];
-  private ranges: Ranges = {};
+  private sel: Sel = {};
+  private spread: Float32Array = new Float32Array(0);
   private kernelMask: Uint8Array | null = null;
   private kernelCount = 0;
   /** set while the page shows its own preview instead of the kernel's answer */
@@ -67,14 +68,13 @@ export class View {
     this.root.append(this.status, this.stage);
     host.appendChild(this.root);
     this.theme = readTheme(host);
-    this.table = decodeTable(model.get("table") as RawTable);
-    this.readOrder();
-    this.ranges = (model.get("ranges") as Ranges) ?? {};
+    this.loadTable();
+    this.sel = fromTrait(this.table, model.get("ranges") as TraitRanges);
     this.adoptKernel();
 
     this.listen("change:table", () => {
-      this.table = decodeTable(model.get("table") as RawTable);
-      this.readOrder();
+      this.loadTable();
+      this.sel = fromTrait(this.table, model.get("ranges") as TraitRanges);
       this.preview = null;
       this.adoptKernel();
       this.invalidate(true);
@@ -85,9 +85,9 @@ export class View {
     });
     this.listen("change:ranges", () => {
       if (this.dragging) return;
-      const r = (model.get("ranges") as Ranges) ?? {};
-      if (rangesKey(r) === rangesKey(this.ranges)) return;
-      this.ranges = r;
+      const s = fromTrait(this.table, model.get("ranges") as TraitRanges);
+      if (selKey(s) === selKey(this.sel)) return;
+      this.sel = s;
       this.invalidate(false);
     });
     const onAnswer = () => {
@@ -101,7 +101,7 @@ export class View {
     const detach = attachBrush(this.overlayCanvas, {
       layout: () => this.layout(),
       scales: () => this.scales(),
-      ranges: () => this.ranges,
+      selection: () => this.sel,
       preview: (r) => this.edit(r, false),
       commit: (r) => this.edit(r, true),
     });
@@ -115,6 +115,12 @@ export class View {
   private listen(event: string, cb: () => void) {
     this.model.on(event, cb);
     this.cleanup.push(() => this.model.off(event, cb));
+  }
+
+  private loadTable() {
+    this.table = decodeTable(this.model.get("table") as RawTable);
+    if (this.spread.length !== this.table.n) this.spread = rowSpread(this.table.n);
+    this.readOrder();
   }
 
   private readOrder() {
@@ -133,10 +139,10 @@ export class View {
     this.schedule();
   }
 
-  private edit(r: Ranges, final: boolean) {
-    this.ranges = r;
+  private edit(s: Sel, final: boolean) {
+    this.sel = s;
     this.dragging = !final;
-    this.preview = previewMask(this.table, r);
+    this.preview = previewMask(this.table, s);
     this.invalidate(true);
     if (final && this.model.get("_standalone")) {
       // no kernel behind this page (an exported file): the page's own mask is the answer
@@ -158,14 +164,14 @@ export class View {
     window.clearTimeout(this.syncTimer);
     this.syncTimer = undefined;
     this.lastSync = performance.now();
-    const sent = (this.model.get("ranges") as Ranges) ?? {};
-    if (rangesKey(sent) === rangesKey(this.ranges)) {
+    const sent = this.model.get("ranges") as TraitRanges;
+    if (selKey(fromTrait(this.table, sent)) === selKey(this.sel)) {
       // nothing new for the kernel: its last answer stands
       if (!this.dragging && this.model.get("answered_seq") >= this.seqSent) this.adoptKernel();
       return;
     }
     this.seqSent = Math.max(this.seqSent, this.model.get("edit_seq") ?? 0) + 1;
-    this.model.set("ranges", this.ranges);
+    this.model.set("ranges", toTrait(this.table, this.sel, sent));
     this.model.set("edit_seq", this.seqSent);
     this.model.save_changes();
   }
@@ -188,7 +194,8 @@ export class View {
     if (!this.layoutCache) {
       const w = Math.max(200, this.root.clientWidth || 800);
       const h = Math.max(160, this.model.get("height") ?? 380);
-      this.layoutCache = computeLayout(w, h, this.order);
+      const first = this.table.byName.get(this.order[0]);
+      this.layoutCache = computeLayout(w, h, this.order, !!first && isCategorical(first));
       this.scaleCache = scalesFor(this.table, this.layoutCache);
     }
     return this.layoutCache;
@@ -217,17 +224,17 @@ export class View {
     const layout = this.layout();
     const dpr = window.devicePixelRatio || 1;
     const mask = this.preview ? this.preview.mask : this.kernelMask;
-    const anyRange = Object.keys(this.ranges).length > 0 || (this.kernelMask !== null && this.kernelCount < this.table.n);
+    const anyRange = Object.keys(this.sel).length > 0 || (this.kernelMask !== null && this.kernelCount < this.table.n);
     if (this.dirtyLines) {
       const ctx = this.linesCanvas.getContext("2d")!;
       ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-      drawLines(ctx, this.table, layout, anyRange ? mask : null, this.theme);
+      drawLines(ctx, this.table, layout, this.scales(), this.spread, anyRange ? mask : null, this.theme);
       this.dirtyLines = false;
     }
     if (this.dirtyOverlay) {
       const ctx = this.overlayCanvas.getContext("2d")!;
       ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-      drawOverlay(ctx, this.table, layout, this.ranges, this.theme);
+      drawOverlay(ctx, layout, this.scales(), this.sel, this.theme);
       this.dirtyOverlay = false;
     }
     this.updateStatus(layout);
@@ -251,9 +258,12 @@ export class View {
       bottom: layout.bottom,
       laneY: layout.laneY,
       axes: layout.slots.map((s, i) => ({ name: s.name, x: s.x, lo: sc[i].axis.lo, hi: sc[i].axis.hi })),
+      axisKinds: layout.slots.map((s, i) => sc[i].axis.kind),
+      categoryBands: layout.slots.map((s, i) => (sc[i].categorical ? sc[i].bands.map((b, c) => ({ label: sc[i].bandLabel(c), y0: b.y0, y1: b.y1 })) : [])),
       bands: layout.slots.flatMap((s, i) =>
-        (this.ranges[s.name] ?? []).map(([lo, hi]) => ({ name: s.name, x: s.x, yTop: sc[i].toPixel(hi), yBottom: sc[i].toPixel(lo) })),
+        (this.sel[s.name]?.spans ?? []).map(([lo, hi]) => ({ name: s.name, x: s.x, yTop: sc[i].toPixel(hi), yBottom: sc[i].toPixel(lo) })),
       ),
+      picked: Object.fromEntries(Object.entries(this.sel).map(([k, v]) => [k, { bands: v.bands, lane: v.lane }])),
     });
   }
 

@@ -1,8 +1,10 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
-import { CODE_MAX, CODE_MISSING, decodeTable, unpackMask } from "../data";
-import { previewMask, rangesKey, tidy } from "../selection";
-import { formatValue, niceTicks } from "../scales";
+import { CODE_MAX, CODE_MISSING, decodeTable, unpackMask, type RawTable } from "../data";
+import { fromTrait, previewMask, selKey, tidy, toTrait, type AxisSel } from "../selection";
+import { AxisScale, formatValue, niceTicks, timeTicks } from "../scales";
+
+const sel = (spans: [number, number][] = [], bands: number[] = [], lane = false): AxisSel => ({ spans, bands, lane });
 
 function tableOf(values: number[], lo: number, hi: number) {
   const codes = new Uint16Array(values.map((v) => (Number.isNaN(v) ? CODE_MISSING : Math.round(((v - lo) / (hi - lo)) * CODE_MAX))));
@@ -12,21 +14,45 @@ function tableOf(values: number[], lo: number, hi: number) {
 test("preview mask from codes matches a direct range test on the values", () => {
   const values = Array.from({ length: 1000 }, (_, i) => (i * 7919) % 1000);
   const t = tableOf(values, 0, 999);
-  const { mask, count } = previewMask(t, { x: [[100, 250], [700, 701]] });
+  const { mask, count } = previewMask(t, { x: sel([[100, 250], [700, 701]]) });
   // reference: the plain inclusive comparison on the original values
   const ref = values.map((v) => (v >= 100 && v <= 250) || (v >= 700 && v <= 701));
   assert.deepEqual(Array.from(mask, Boolean), ref);
   assert.equal(count, ref.filter(Boolean).length);
 });
 
-test("missing codes are never inside a range", () => {
+test("missing codes are only picked through the lane", () => {
   const t = tableOf([1, NaN, 3], 1, 3);
-  assert.deepEqual(Array.from(previewMask(t, { x: [[-1e9, 1e9]] }).mask), [1, 0, 1]);
+  assert.deepEqual(Array.from(previewMask(t, { x: sel([[-Infinity, Infinity]]) }).mask), [1, 0, 1]);
+  assert.deepEqual(Array.from(previewMask(t, { x: sel([], [], true) }).mask), [0, 1, 0]);
+});
+
+test("category bands are picked by code", () => {
+  const codes = new Uint16Array([0, 1, 2, 1, CODE_MISSING]);
+  const raw: RawTable = { n: 5, columns: [{ name: "c", kind: "category", labels: ["a", "b", "c"], counts: [1, 2, 1], missing: 1, codes: new DataView(codes.buffer) }] };
+  const t = decodeTable(raw);
+  const s = fromTrait(t, { c: ["b", null] });
+  assert.deepEqual(s.c, sel([], [1], true));
+  assert.deepEqual(Array.from(previewMask(t, s).mask), [0, 1, 0, 1, 1]);
+  assert.deepEqual(toTrait(t, s, {}), { c: ["b", null] });
 });
 
 test("tidy merges overlapping spans and drops empty axes; keys ignore axis order", () => {
-  assert.deepEqual(tidy({ a: [[5, 6], [1, 3], [2, 4]], b: [] }), { a: [[1, 4], [5, 6]] });
-  assert.equal(rangesKey({ a: [[1, 2]], b: [[3, 4]] }), rangesKey({ b: [[3, 4]], a: [[1, 2]] }));
+  assert.deepEqual(tidy({ a: sel([[5, 6], [1, 3], [2, 4]]), b: sel() }), { a: sel([[1, 4], [5, 6]]) });
+  assert.equal(selKey({ a: sel([[1, 2]]), b: sel([[3, 4]]) }), selKey({ b: sel([[3, 4]]), a: sel([[1, 2]]) }));
+});
+
+test("datetime ends travel as ISO strings; untouched axes keep the kernel's exact text", () => {
+  const codes = new Uint16Array([0, CODE_MAX]);
+  const lo = Date.UTC(2024, 0, 1) * 1e6;
+  const hi = Date.UTC(2025, 0, 1) * 1e6;
+  const t = decodeTable({ n: 2, columns: [{ name: "d", kind: "datetime", lo, hi, missing: 0, codes: new DataView(codes.buffer) }] });
+  const prev = { d: [["2024-03-01T00:00:00.000000001", null]] as [string, null][] };
+  const s = fromTrait(t, prev);
+  assert.equal(s.d.spans[0][0], Date.UTC(2024, 2, 1) * 1e6); // naive text is wall-clock UTC
+  assert.deepEqual(toTrait(t, s, prev), prev);
+  s.d.spans[0] = [Date.UTC(2024, 5, 1) * 1e6, Infinity];
+  assert.deepEqual(toTrait(t, s, prev), { d: [["2024-06-01T00:00:00.000", null]] });
 });
 
 test("unpackMask reads numpy's little bit order", () => {
@@ -40,4 +66,21 @@ test("nice ticks are round numbers inside the domain", () => {
   assert.equal(step, 2);
   assert.deepEqual(values, [2, 4, 6, 8]);
   assert.equal(formatValue(0.1 + 0.2, 0.1), "0.3");
+  assert.equal(formatValue(100), "100");
+});
+
+test("calendar ticks fall on month starts and years", () => {
+  const t = timeTicks(Date.UTC(2024, 0, 15), Date.UTC(2024, 11, 20), 5);
+  for (const v of t.values) assert.equal(new Date(v).getUTCDate(), 1);
+  const y = timeTicks(Date.UTC(2001, 5, 1), Date.UTC(2024, 5, 1), 5);
+  for (const v of y.values) assert.equal(new Date(v).getUTCMonth(), 0);
+});
+
+test("category bands stack bottom to top with heights growing with counts", () => {
+  const codes = new Uint16Array([0]);
+  const t = decodeTable({ n: 1, columns: [{ name: "c", kind: "category", labels: ["a", "b"], counts: [10, 30], missing: 0, codes: new DataView(codes.buffer) }] });
+  const sc = new AxisScale(t.axes[0], 0, 200);
+  assert.ok(sc.bands[0].y0 > sc.bands[1].y1, "band 0 below band 1");
+  assert.ok(sc.bands[1].y1 - sc.bands[1].y0 > sc.bands[0].y1 - sc.bands[0].y0);
+  assert.equal(sc.bandAt((sc.bands[1].y0 + sc.bands[1].y1) / 2), 1);
 });

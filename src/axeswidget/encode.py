@@ -1,18 +1,24 @@
-"""Turn a user's table into columns the widget can draw and select on.
+"""Turn a user's table into axes the widget can draw and select on.
 
 Two things come out of every column:
 
-* the *exact* values the kernel keeps for the mask (float64, NaN where missing), and
-* the *wire* form the front end draws from: one ``uint16`` code per cell, quantised linearly over the
-  column's finite domain ``[lo, hi]`` (codes ``0..CODE_MAX``), with ``CODE_MISSING`` reserved for a
-  missing value. That is 2 bytes per cell, sent as a binary buffer.
+* the *exact* values the kernel keeps for the mask (float64 for numbers, int64 nanoseconds for dates
+  and durations, integer category codes for labels), and
+* the *wire* form the front end draws from: one ``uint16`` code per cell, sent as a binary buffer.
+  Numbers, dates and durations are quantised linearly (or logarithmically, on request) over the
+  column's finite domain onto ``0..CODE_MAX``; category axes send the index of the row's band;
+  ``CODE_MISSING`` marks a missing value. That is 2 bytes per cell.
 
-The front end only previews from the codes; the authoritative mask is always computed here from the
-exact values (see ``selection.py``).
+Column kinds: ``number`` (continuous), ``integer`` (few distinct integers), ``category`` (labels;
+pandas Categorical order kept, otherwise most frequent first), ``boolean``, ``datetime`` (tz-aware
+included) and ``timedelta``. Missing values (NaN, None, pd.NA, NaT) sit in a lane of their own.
+``±inf`` are drawn pinned to the ends of their axis (the axis shows how many) and are selected by a
+range whose end is open (``None``) on that side.
 """
 
 from __future__ import annotations
 
+import math
 import warnings
 from dataclasses import dataclass, field
 
@@ -23,6 +29,12 @@ CODE_MAX = 65534
 CODE_MISSING = 65535
 #: integer columns with at most this many distinct values are drawn as discrete axes
 INTEGER_DISCRETE_LIMIT = 40
+#: category axes draw at most this many bands; rarer labels share one band ("other labels")
+CATEGORY_BAND_LIMIT = 60
+#: object columns with at most this many distinct labels are categories; more are skipped
+CATEGORY_LIMIT = 100_000
+
+NUMERIC_KINDS = ("number", "integer", "datetime", "timedelta")
 
 
 class ColumnError(ValueError):
@@ -31,139 +43,299 @@ class ColumnError(ValueError):
 
 @dataclass
 class Column:
-    """One axis: its name, kind, exact values and domain."""
+    """One axis: name, kind, exact values, and what the front end needs to draw it."""
 
     name: str
-    kind: str  # "number" | "integer"
-    values: np.ndarray  # float64, NaN where missing; the exact values behind the mask
-    lo: float
-    hi: float
-    missing: int
-    source: object = None  # the column label in the user's table
-    values_list: list | None = None  # distinct values of a discrete axis (ticks sit on them)
-    codes: np.ndarray = field(default=None, repr=False)  # uint16 wire codes
+    kind: str
+    source: object  # the column label in the user's table
+    missing: np.ndarray  # bool per row
+    values: np.ndarray | None = None  # number/integer: float64; datetime/timedelta: int64 ns
+    lo: float = 0.0  # finite domain in axis units (float64; ns for datetime/timedelta)
+    hi: float = 1.0
+    log: bool = False
+    tz: str | None = None
+    discrete: list | None = None  # distinct values of an integer axis (ticks sit on them)
+    labels: list[str] | None = None  # category labels, axis order (first = bottom)
+    label_codes: np.ndarray | None = None  # int32 index into labels per row, -1 missing
+    counts: list[int] | None = None
+    codes: np.ndarray = field(default=None, repr=False)
+
+    @property
+    def n_missing(self) -> int:
+        return int(self.missing.sum())
+
+    def infinite(self) -> tuple[int, int]:
+        if self.kind not in ("number", "integer"):
+            return 0, 0
+        return int(np.isneginf(self.values).sum()), int(np.isposinf(self.values).sum())
+
+    def encode(self) -> None:
+        """(Re)compute the wire codes from the exact values."""
+        if self.kind in ("category", "boolean"):
+            codes = np.full(len(self.missing), CODE_MISSING, dtype=np.uint16)
+            shown = min(len(self.labels), CATEGORY_BAND_LIMIT)
+            lc = self.label_codes
+            present = lc >= 0
+            codes[present] = np.minimum(lc[present], shown).astype(np.uint16)
+            self.codes = codes
+            return
+        self.codes = quantise(self.axis_units(), self.lo, self.hi, self.log, self.missing)
+
+    def axis_units(self) -> np.ndarray:
+        """Values as float64 in axis units (NaN where missing)."""
+        if self.kind in ("datetime", "timedelta"):
+            out = self.values.astype(np.float64)
+            out[self.missing] = np.nan
+            return out
+        return self.values
 
     def spec(self) -> dict:
         """What the front end needs to know about this axis (JSON plus one binary buffer)."""
-        return {
-            "name": self.name,
-            "kind": self.kind,
-            "lo": self.lo,
-            "hi": self.hi,
-            "missing": self.missing,
-            **({"values": self.values_list} if self.values_list is not None else {}),
-            "codes": memoryview(self.codes).cast("B"),
-        }
+        out = {"name": self.name, "kind": self.kind, "missing": self.n_missing}
+        if self.kind in ("category", "boolean"):
+            shown = min(len(self.labels), CATEGORY_BAND_LIMIT)
+            out["labels"] = self.labels[:shown]
+            out["counts"] = self.counts[:shown]
+            if len(self.labels) > shown:
+                out["rest"] = {"labels": len(self.labels) - shown, "rows": int(sum(self.counts[shown:]))}
+        else:
+            out.update(lo=self.lo, hi=self.hi, log=self.log)
+            if self.kind == "datetime":
+                out["tz"] = self.tz
+            neg, pos = self.infinite()
+            if neg or pos:
+                out["inf"] = [neg, pos]
+            if self.discrete is not None:
+                out["values"] = self.discrete
+        out["codes"] = memoryview(self.codes).cast("B")
+        return out
 
 
-def to_frame(data) -> pd.DataFrame:
-    """Accept the supported table types and return a pandas DataFrame (no copy where possible)."""
+# -- inputs -----------------------------------------------------------------------------------------
+def to_frame(data, names=None) -> pd.DataFrame:
+    """Accept the supported table types and return a pandas DataFrame (no copy where possible).
+
+    pandas DataFrame; polars DataFrame; pyarrow Table or RecordBatch; any object offering the Arrow
+    PyCapsule stream interface (``__arrow_c_stream__``); a dict of 1-D arrays; a 2-D numpy array
+    (column names from ``names``, otherwise ``"0", "1", ...``).
+    """
     if isinstance(data, pd.DataFrame):
-        return data
-    raise TypeError(f"axeswidget: expected a pandas DataFrame, got {type(data).__name__}")
+        return data.copy(deep=False)  # copy-on-write: later edits of the user's frame do not leak in
+    if isinstance(data, np.ndarray):
+        if data.ndim != 2:
+            raise TypeError(f"axeswidget: a numpy array must be 2-D (rows x columns), got {data.ndim}-D")
+        cols = [str(i) for i in range(data.shape[1])] if names is None else list(names)
+        if len(cols) != data.shape[1]:
+            raise ValueError(f"axeswidget: {len(cols)} names for {data.shape[1]} columns")
+        return pd.DataFrame(data, columns=cols)
+    if isinstance(data, dict):
+        try:
+            return pd.DataFrame(
+                {k: np.asarray(v) if not isinstance(v, pd.Series) else v for k, v in data.items()}
+            )
+        except ValueError as err:
+            raise ValueError(f"axeswidget: the dict's arrays cannot form a table: {err}") from None
+    mod = type(data).__module__.split(".")[0]
+    if mod == "polars":
+        return data.to_pandas()
+    if mod == "pyarrow" and hasattr(data, "to_pandas"):
+        return data.to_pandas()
+    if hasattr(data, "__arrow_c_stream__"):
+        import pyarrow as pa
+
+        return pa.RecordBatchReader.from_stream(data).read_all().to_pandas()
+    raise TypeError(
+        f"axeswidget: cannot read a table from {type(data).__name__}; give a pandas or polars DataFrame, "
+        "a pyarrow Table, a dict of 1-D arrays or a 2-D numpy array"
+    )
 
 
 def display_name(label) -> str:
-    """The text shown on an axis header for a column label."""
-    return label if isinstance(label, str) else str(label)
+    """The text shown on an axis header for a column label (tuples of a MultiIndex joined by ' / ')."""
+    if isinstance(label, str):
+        return label
+    if isinstance(label, tuple):
+        return " / ".join(display_name(p) for p in label)
+    return str(label)
 
 
-def numeric_values(series: pd.Series) -> np.ndarray | None:
-    """float64 values with NaN for missing, or None when the column is not numeric."""
-    dtype = series.dtype
-    if pd.api.types.is_bool_dtype(dtype):
-        return None
-    if not pd.api.types.is_numeric_dtype(dtype):
-        return None
-    return series.to_numpy(dtype="float64", na_value=np.nan)
-
-
-def quantise(values: np.ndarray, lo: float, hi: float) -> np.ndarray:
-    """uint16 codes: linear over [lo, hi] onto 0..CODE_MAX, CODE_MISSING for NaN; ±inf pin to the ends.
+# -- encoding ---------------------------------------------------------------------------------------
+def quantise(values: np.ndarray, lo: float, hi: float, log: bool = False, missing=None) -> np.ndarray:
+    """uint16 codes over [lo, hi] onto 0..CODE_MAX, CODE_MISSING for NaN/missing; ±inf pin to the ends.
 
     Halves are scaled separately so that a domain such as [-1e308, 1e308] does not overflow.
     """
     codes = np.full(values.shape, CODE_MISSING, dtype=np.uint16)
-    present = ~np.isnan(values)
+    present = ~np.isnan(values) if missing is None else ~missing & ~np.isnan(values)
+    v = np.clip(values[present], lo, hi)
+    if log:
+        v, lo, hi = np.log(v), math.log(lo), math.log(hi)
     half_span = hi * 0.5 - lo * 0.5
     if half_span > 0:
-        scaled = (np.clip(values[present], lo, hi) * 0.5 - lo * 0.5) * (CODE_MAX / half_span)
-        codes[present] = np.rint(scaled).astype(np.uint16)
+        codes[present] = np.rint((v * 0.5 - lo * 0.5) * (CODE_MAX / half_span)).astype(np.uint16)
     else:
         codes[present] = 0
     return codes
 
 
-def encode_column(label, series: pd.Series, name: str | None = None) -> Column:
-    """Describe and encode one numeric column; raise ColumnError if it cannot be an axis."""
-    name = display_name(label) if name is None else name
-    values = numeric_values(series)
-    if values is None:
-        raise ColumnError(
-            f"column {name!r} has dtype {series.dtype}, which cannot be drawn as a numeric axis"
-        )
+def _domain(values: np.ndarray) -> tuple[float, float]:
     finite = values[np.isfinite(values)]
-    missing = int(np.isnan(values).sum())
-    if finite.size:
-        lo, hi = float(finite.min()), float(finite.max())
+    if not finite.size:
+        return 0.0, 1.0
+    return float(finite.min()), float(finite.max())
+
+
+def _is_mixed_or_nested(series: pd.Series) -> str | None:
+    """Why an object column cannot be an axis, or None if it holds labels only."""
+    sample = series.dropna()
+    types = set(map(type, sample))
+    if not types:
+        return None
+    if any(issubclass(t, list | dict | tuple | set | np.ndarray) for t in types):
+        return "holds nested values (lists, dicts or arrays)"
+    if types <= {str} or types <= {bool, np.bool_}:
+        return None
+    return "mixes value types (" + ", ".join(sorted(t.__name__ for t in types)) + ")"
+
+
+def _category_column(name, label, series: pd.Series) -> Column:
+    missing = series.isna().to_numpy(dtype=bool)
+    if isinstance(series.dtype, pd.CategoricalDtype):
+        cats = list(series.cat.categories)
+        codes = series.cat.codes.to_numpy().astype(np.int32)
+        counts = np.bincount(codes[codes >= 0], minlength=len(cats))
+        labels = [str(c) for c in cats]
+        kind = "category"
     else:
-        lo, hi = 0.0, 1.0
-    kind, distinct = "number", None
-    if pd.api.types.is_integer_dtype(series.dtype) and finite.size:
-        uniq = np.unique(finite)
-        if uniq.size <= INTEGER_DISCRETE_LIMIT:
-            kind, distinct = "integer", [int(v) for v in uniq]
-    col = Column(name=name, kind=kind, values=values, lo=lo, hi=hi, missing=missing, source=label)
-    col.values_list = distinct
-    col.codes = quantise(values, lo, hi)
+        values = series.to_numpy(dtype=object)
+        present = ~missing
+        uniq, inverse, counts = np.unique(
+            values[present].astype(str), return_inverse=True, return_counts=True
+        )
+        if uniq.size > CATEGORY_LIMIT:
+            raise ColumnError(
+                f"column {name!r} has {uniq.size} distinct labels; at most {CATEGORY_LIMIT} are drawn"
+            )
+        is_bool = pd.api.types.is_bool_dtype(series.dtype) or set(uniq) <= {"True", "False"}
+        if is_bool:
+            order = [i for lab in ("False", "True") for i in np.flatnonzero(uniq == lab)]
+        else:  # most frequent first; ties by label
+            order = sorted(range(uniq.size), key=lambda i: (-counts[i], uniq[i]))
+        rank = np.empty(uniq.size, dtype=np.int32)
+        rank[order] = np.arange(len(order), dtype=np.int32)
+        codes = np.full(len(series), -1, dtype=np.int32)
+        codes[present] = rank[inverse]
+        labels = [str(uniq[i]) for i in order]
+        counts = counts[order]
+        kind = "boolean" if is_bool else "category"
+    if len(set(labels)) != len(labels):
+        dupes = sorted({lab for lab in labels if labels.count(lab) > 1})
+        raise ColumnError(f"column {name!r}: different labels read the same as text: {dupes[:5]}")
+    col = Column(name=name, kind=kind, source=label, missing=missing, labels=labels)
+    col.label_codes = codes
+    col.counts = [int(c) for c in counts]
+    return col
+
+
+def encode_column(label, series: pd.Series, name: str | None = None) -> Column:
+    """Describe and encode one column; raise ColumnError naming it if it cannot be an axis."""
+    name = display_name(label) if name is None else name
+    dtype = series.dtype
+    if isinstance(dtype, pd.ArrowDtype):
+        import pyarrow as pa
+
+        at = dtype.pyarrow_dtype
+        if pa.types.is_timestamp(at) or pa.types.is_date(at):
+            series = series.astype(f"datetime64[ns{', ' + at.tz if getattr(at, 'tz', None) else ''}]")
+        elif pa.types.is_duration(at):
+            series = series.astype("timedelta64[ns]")
+        elif pa.types.is_dictionary(at):
+            series = series.astype(str).where(series.notna()).astype("category")
+        elif pa.types.is_boolean(at):
+            series = series.astype("boolean")
+        elif pa.types.is_string(at) or pa.types.is_large_string(at):
+            series = series.astype(object).where(series.notna(), None)
+        dtype = series.dtype
+    if isinstance(dtype, pd.CategoricalDtype) or pd.api.types.is_bool_dtype(dtype):
+        col = _category_column(name, label, series)
+    elif pd.api.types.is_datetime64_any_dtype(dtype):
+        tz = str(dtype.tz) if getattr(dtype, "tz", None) is not None else None
+        ns = series.dt.tz_convert("UTC") if tz else series
+        missing = series.isna().to_numpy(dtype=bool)
+        values = ns.to_numpy(dtype="datetime64[ns]").view(np.int64).copy()
+        col = Column(name=name, kind="datetime", source=label, missing=missing, values=values, tz=tz)
+        col.lo, col.hi = _domain(np.where(missing, np.nan, values.astype(np.float64)))
+    elif pd.api.types.is_timedelta64_dtype(dtype):
+        missing = series.isna().to_numpy(dtype=bool)
+        values = series.to_numpy(dtype="timedelta64[ns]").view(np.int64).copy()
+        col = Column(name=name, kind="timedelta", source=label, missing=missing, values=values)
+        col.lo, col.hi = _domain(np.where(missing, np.nan, values.astype(np.float64)))
+    elif pd.api.types.is_numeric_dtype(dtype):
+        values = series.to_numpy(dtype="float64", na_value=np.nan)
+        missing = np.isnan(values)
+        col = Column(name=name, kind="number", source=label, missing=missing, values=values)
+        col.lo, col.hi = _domain(values)
+        if pd.api.types.is_integer_dtype(dtype) and not missing.all():
+            uniq = np.unique(values[~missing])
+            if uniq.size <= INTEGER_DISCRETE_LIMIT:
+                col.kind, col.discrete = "integer", [int(v) for v in uniq]
+    elif pd.api.types.is_object_dtype(dtype) or pd.api.types.is_string_dtype(dtype):
+        why = _is_mixed_or_nested(series) if pd.api.types.is_object_dtype(dtype) else None
+        if why:
+            raise ColumnError(f"column {name!r} {why}, which cannot be drawn on an axis")
+        col = _category_column(name, label, series)
+    else:
+        raise ColumnError(f"column {name!r} has dtype {dtype}, which cannot be drawn on an axis")
+    col.encode()
     return col
 
 
 def encode_frame(frame: pd.DataFrame, axes=None) -> dict[str, Column]:
     """Encode the chosen columns of a frame, in order; a dict from display name to Column.
 
-    ``axes=None`` takes every numeric column (others are skipped with one warning); naming a column
-    that does not exist or cannot be drawn raises a clear error.
+    ``axes=None`` takes every column that can be drawn (others are skipped with one warning that
+    lists them); naming a column that does not exist or cannot be drawn raises a clear error.
     """
     labels = list(frame.columns)
     names = [display_name(c) for c in labels]
-    dupes = sorted({n for n in names if names.count(n) > 1})
+    dupes = {n for n in names if names.count(n) > 1}
     if axes is None:
-        chosen, skipped = [], []
-        for label, name in zip(labels, names, strict=True):
-            if numeric_values(frame[label]) is None:
-                skipped.append(name)
-            elif name in dupes:
-                raise ColumnError(f"column name {name!r} appears more than once; rename the duplicates")
-            else:
-                chosen.append((label, name))
-        if not chosen:
+        out, skipped = {}, []
+        for i, name in enumerate(names):
+            label = labels[i]
+            if name in dupes:
+                skipped.append(f"{name!r} (the name appears more than once)")
+                continue
+            try:
+                out[name] = encode_column(label, frame.iloc[:, i], name)
+            except ColumnError as err:
+                skipped.append(f"{name!r} ({str(err).split(' ', 2)[-1]})")
+        if not out:
             raise ColumnError(
-                "the table has no numeric column to draw"
-                + (f" (columns: {', '.join(map(repr, names))})" if names else " (it has no columns)")
+                "the table has no column that can be drawn"
+                + (f": {'; '.join(skipped)}" if skipped else " (it has no columns)")
             )
         if skipped:
-            warnings.warn(
-                f"axeswidget: skipped columns that are not numeric: {', '.join(map(repr, skipped))}",
-                stacklevel=3,
-            )
-    else:
-        if isinstance(axes, str):
-            axes = [axes]
-        chosen = []
-        for wanted in axes:
-            hits = [(lab, n) for lab, n in zip(labels, names, strict=True) if lab == wanted or n == wanted]
-            if not hits:
-                raise ColumnError(f"unknown column {wanted!r}; the table has: {', '.join(map(repr, names))}")
-            if len({n for _, n in hits}) > 1 or len(hits) > 1:
-                raise ColumnError(f"column name {display_name(wanted)!r} appears more than once")
-            chosen.append(hits[0])
-        seen = [n for _, n in chosen]
-        if len(set(seen)) != len(seen):
+            warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=3)
+        return out
+    if isinstance(axes, str | tuple):
+        axes = [axes]
+    out = {}
+    for wanted in axes:
+        hits = [
+            i for i, (lab, n) in enumerate(zip(labels, names, strict=True)) if lab == wanted or n == wanted
+        ]
+        if not hits:
+            raise ColumnError(f"unknown column {wanted!r}; the table has: {', '.join(map(repr, names))}")
+        if len(hits) > 1:
             raise ColumnError(
-                "axes= names a column twice: " + ", ".join(sorted({n for n in seen if seen.count(n) > 1}))
+                f"column name {display_name(wanted)!r} appears more than once; rename the duplicates"
             )
-    return {name: encode_column(label, frame[label], name) for label, name in chosen}
+        name = names[hits[0]]
+        if name in out:
+            raise ColumnError(f"axes= names column {name!r} twice")
+        out[name] = encode_column(labels[hits[0]], frame.iloc[:, hits[0]], name)
+    return out
 
 
 def table_trait(columns: dict[str, Column], n: int) -> dict:

@@ -1,80 +1,219 @@
-"""The selection: a plain description of ranges per axis, and its exact evaluation as a mask.
+"""The selection: a plain description of what is picked on each axis, and its exact evaluation.
 
-A selection is ``{axis name: [[lo, hi], ...]}`` in data units. Ranges on one axis combine with OR,
-axes combine with AND; both ends are inclusive. An axis without ranges does not filter.
+A selection is ``{axis name: [item, ...]}``. An item is
+
+* ``[lo, hi]`` — a range on a number, integer, datetime or timedelta axis, both ends inclusive.
+  ``None`` as an end leaves that side open (and takes in ``±inf`` values pinned at that end).
+  Datetime ends are ISO 8601 strings (timezone offset included for tz-aware axes); timedelta ends
+  are seconds;
+* a label (str) — a category on a category or boolean axis (``"True"``/``"False"`` for booleans);
+* ``None`` — the axis's missing-values lane.
+
+Items on one axis combine with OR, axes combine with AND. An axis without items does not filter.
 
 Evaluation is kept apart from the description: :class:`MaskEvaluator` turns a selection into a boolean
-mask over in-memory float64 columns and recomputes only the axes whose ranges changed.
+mask over the in-memory columns and recomputes only the axes whose items changed.
 """
 
 from __future__ import annotations
 
+import datetime as _dt
 import math
 from collections.abc import Mapping
 from numbers import Real
 
 import numpy as np
+import pandas as pd
 
 from .encode import Column
 
-Ranges = dict[str, list[list[float]]]
+Ranges = dict[str, list]
 
 
 class SelectionError(ValueError):
     """A selection that cannot be applied; the message names the axis and the problem."""
 
 
-def _number(value, axis: str) -> float:
+def _is_pair(item) -> bool:
+    return isinstance(item, list | tuple | np.ndarray) and not isinstance(item, str)
+
+
+def _number(value, axis: str) -> float | None:
+    if value is None:
+        return None
     if isinstance(value, bool) or not isinstance(value, Real | np.number):
         raise SelectionError(f"range on {axis!r}: {value!r} is a {type(value).__name__}, expected a number")
     out = float(value)
     if math.isnan(out):
-        raise SelectionError(f"range on {axis!r}: an end is NaN; give numbers (±inf is allowed)")
+        raise SelectionError(f"range on {axis!r}: an end is NaN; give a number, or None for an open end")
+    return out
+
+
+def _timestamp(value, col: Column) -> str | None:
+    if value is None:
+        return None
+    if isinstance(value, bool) or not isinstance(value, str | _dt.date | np.datetime64 | pd.Timestamp):
+        raise SelectionError(
+            f"range on {col.name!r}: {value!r} is a {type(value).__name__}, expected a date/time "
+            "(pandas Timestamp, datetime or ISO 8601 string)"
+        )
+    try:
+        ts = pd.Timestamp(value)
+    except (ValueError, TypeError) as err:
+        raise SelectionError(f"range on {col.name!r}: cannot read {value!r} as a date/time ({err})") from None
+    if pd.isna(ts):
+        raise SelectionError(
+            f"range on {col.name!r}: an end is NaT; give a date/time, or None for an open end"
+        )
+    if col.tz is None and ts.tzinfo is not None:
+        raise SelectionError(
+            f"range on {col.name!r}: {value!r} has a time zone but the column has none; drop the offset"
+        )
+    if col.tz is not None:
+        ts = ts.tz_localize(col.tz) if ts.tzinfo is None else ts.tz_convert(col.tz)
+    return ts.isoformat()
+
+
+def _seconds(value, axis: str) -> float | None:
+    if isinstance(value, pd.Timedelta | _dt.timedelta | np.timedelta64 | str):
+        try:
+            td = pd.Timedelta(value)
+        except ValueError as err:
+            raise SelectionError(f"range on {axis!r}: cannot read {value!r} as a duration ({err})") from None
+        if pd.isna(td):
+            raise SelectionError(
+                f"range on {axis!r}: an end is NaT; give a duration, or None for an open end"
+            )
+        return td.value / 1e9
+    return _number(value, axis)
+
+
+def _end(value, col: Column, side: str):
+    """Canonical form of one range end for the column's kind (None = open)."""
+    if col.kind == "datetime":
+        return _timestamp(value, col)
+    if col.kind == "timedelta":
+        out = _seconds(value, col.name)
+    else:
+        out = _number(value, col.name)
+    if out is not None and math.isinf(out):
+        if (out < 0) == (side == "lo"):
+            return None  # -inf as lo / +inf as hi: an open end
+        raise SelectionError(f"range on {col.name!r}: {side} is {out}; use None for an open end")
+    return out
+
+
+def _end_key(value, col: Column) -> float:
+    """A sortable number for a canonical end (open ends sort outside)."""
+    if value is None:
+        return -math.inf
+    if col.kind == "datetime":
+        return float(pd.Timestamp(value).value)
+    return float(value)
+
+
+def normalise_items(items, col: Column) -> list:
+    """Validate the items of one axis; return them sorted (ranges by low end, then labels, then None)."""
+    axis = col.name
+    if items is None:
+        return []
+    if isinstance(items, str) or not isinstance(items, list | tuple | np.ndarray):
+        raise SelectionError(f"selection on {axis!r}: expected a list of items, got {items!r}")
+    items = list(items)
+    categorical = col.kind in ("category", "boolean")
+    if not categorical and len(items) == 2 and not any(_is_pair(i) for i in items):
+        if any(i is not None for i in items):  # [lo, hi] shorthand for one range
+            items = [items]
+    spans, picked, lane = [], set(), False
+    for item in items:
+        if item is None:
+            lane = True
+        elif categorical:
+            if _is_pair(item):
+                raise SelectionError(
+                    f"selection on {axis!r}: a category axis takes labels, not the range {item!r}"
+                )
+            label = str(item)
+            if label not in col.labels:
+                shown = ", ".join(map(repr, col.labels[:8])) + (" …" if len(col.labels) > 8 else "")
+                raise SelectionError(f"selection on {axis!r}: unknown label {label!r}; labels are {shown}")
+            picked.add(label)
+        else:
+            if not _is_pair(item) or len(item) != 2:
+                raise SelectionError(f"range on {axis!r}: expected a pair [lo, hi], got {item!r}")
+            lo, hi = _end(item[0], col, "lo"), _end(item[1], col, "hi")
+            if lo is not None and hi is not None and _end_key(lo, col) > _end_key(hi, col):
+                raise SelectionError(f"range on {axis!r}: lo {lo!r} is greater than hi {hi!r}")
+            spans.append([lo, hi])
+    spans.sort(key=lambda s: _end_key(s[0], col))
+    out: list = spans
+    if categorical:
+        out = [lab for lab in col.labels if lab in picked]
+    if lane:
+        out.append(None)
     return out
 
 
 def normalise(ranges, columns: Mapping[str, Column]) -> Ranges:
     """Validate a user-given selection and return it in canonical form.
 
-    Accepts ``{axis: [lo, hi]}`` as a shorthand for one range. Empty lists drop the axis. Ranges on an
-    axis are sorted by their low end. Raises :class:`SelectionError` naming the axis and the problem.
+    Raises :class:`SelectionError` naming the axis and the problem. Empty lists drop the axis.
     """
     if ranges is None:
         return {}
     if not isinstance(ranges, Mapping):
         raise SelectionError(
-            f"ranges must be a dict of axis name -> [[lo, hi], ...], got {type(ranges).__name__}"
+            f"ranges must be a dict of axis name -> list of items, got {type(ranges).__name__}"
         )
     out: Ranges = {}
-    for axis, spans in ranges.items():
+    for axis, items in ranges.items():
         if axis not in columns:
-            known = ", ".join(map(repr, columns))
-            raise SelectionError(f"unknown axis {axis!r} in ranges; the axes are: {known}")
-        if spans is None:
-            continue
-        if not isinstance(spans, list | tuple | np.ndarray):
-            raise SelectionError(f"range on {axis!r}: expected [lo, hi] or a list of them, got {spans!r}")
-        spans = list(spans)
-        if len(spans) == 2 and not any(isinstance(s, list | tuple | np.ndarray) for s in spans):
-            spans = [spans]
-        clean = []
-        for span in spans:
-            if not isinstance(span, list | tuple | np.ndarray) or len(span) != 2:
-                raise SelectionError(f"range on {axis!r}: expected a pair [lo, hi], got {span!r}")
-            lo, hi = _number(span[0], axis), _number(span[1], axis)
-            if lo > hi:
-                raise SelectionError(f"range on {axis!r}: lo {lo!r} is greater than hi {hi!r}")
-            clean.append([lo, hi])
+            raise SelectionError(
+                f"unknown axis {axis!r} in ranges; the axes are: {', '.join(map(repr, columns))}"
+            )
+        clean = normalise_items(items, columns[axis])
         if clean:
-            out[axis] = sorted(clean)
+            out[axis] = clean
     return out
 
 
-def axis_mask(values: np.ndarray, spans: list[list[float]]) -> np.ndarray:
-    """Rows whose value lies in any of the inclusive spans (NaN never does)."""
-    mask = np.zeros(values.shape, dtype=bool)
-    for lo, hi in spans:
-        mask |= (values >= lo) & (values <= hi)
+def _exact_end(value, col: Column):
+    if value is None:
+        return None
+    if col.kind == "datetime":
+        return pd.Timestamp(value).value  # int64 ns since the epoch (UTC for tz-aware columns)
+    if col.kind == "timedelta":
+        return int(round(value * 1e9))
+    return value
+
+
+def axis_mask(col: Column, items: list) -> np.ndarray:
+    """Rows picked by any of the items on one axis, computed on the exact values."""
+    n = len(col.missing)
+    if col.kind in ("category", "boolean"):
+        lut = np.zeros(len(col.labels) + 1, dtype=bool)
+        index = {lab: i for i, lab in enumerate(col.labels)}
+        for item in items:
+            lut[0 if item is None else index[item] + 1] = True
+        return lut[col.label_codes + 1]
+    mask = np.zeros(n, dtype=bool)
+    present = None
+    for item in items:
+        if item is None:
+            mask |= col.missing
+            continue
+        lo, hi = _exact_end(item[0], col), _exact_end(item[1], col)
+        v = col.values
+        if present is None:
+            present = ~col.missing
+        hit = present.copy() if lo is None and hi is None else None
+        if lo is not None:
+            hit = v >= lo
+        if hi is not None:
+            hit = (v <= hi) if hit is None else (hit & (v <= hi))
+        if col.kind in ("datetime", "timedelta"):
+            hit &= present  # NaT is stored as the smallest int64
+        mask |= hit
     return mask
 
 
@@ -87,19 +226,26 @@ class MaskEvaluator:
         self.ranges: Ranges = {}
         self._parts: dict[str, np.ndarray] = {}
         self.mask = np.ones(n, dtype=bool)
+        self.mask.flags.writeable = False
 
     def update(self, ranges: Ranges) -> np.ndarray:
-        """Apply a normalised selection; only axes whose spans changed are recomputed."""
+        """Apply a normalised selection; only axes whose items changed are recomputed."""
         for axis in list(self._parts):
             if axis not in ranges:
                 del self._parts[axis]
-        for axis, spans in ranges.items():
-            if self.ranges.get(axis) != spans or axis not in self._parts:
-                self._parts[axis] = axis_mask(self.columns[axis].values, spans)
-        self.ranges = {k: [list(s) for s in v] for k, v in ranges.items()}
-        mask = np.ones(self.n, dtype=bool)
-        for part in self._parts.values():
-            mask &= part
+        for axis, items in ranges.items():
+            if self.ranges.get(axis) != items or axis not in self._parts:
+                self._parts[axis] = axis_mask(self.columns[axis], items)
+        self.ranges = {k: list(v) for k, v in ranges.items()}
+        parts = list(self._parts.values())
+        if not parts:
+            mask = np.ones(self.n, dtype=bool)
+        elif len(parts) == 1:
+            mask = parts[0].copy()
+        else:
+            mask = np.logical_and(parts[0], parts[1])
+            for part in parts[2:]:
+                mask &= part
         mask.flags.writeable = False
         self.mask = mask
         return mask

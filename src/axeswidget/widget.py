@@ -1,26 +1,12 @@
 """The widget class: traits and public methods. Heavy lifting lives in encode.py and selection.py.
 
-Trait contract (the only channel between kernel and front end; see DEVELOPERS.md for the full table):
-
-=============  ==============  ===========================================================================
-trait          direction       meaning
-=============  ==============  ===========================================================================
-``table``      kernel → page   ``{"n": rows, "columns": [{name, kind, lo, hi, missing, codes}]}``; ``codes``
-                               is a binary buffer of uint16 (2 bytes per cell, 65535 = missing)
-``order``      both            axis names, left to right
-``ranges``     both            ``{axis: [[lo, hi], ...]}`` in data units, inclusive; OR within an axis,
-                               AND across axes
-``count``      kernel → page   number of selected rows, computed exactly in the kernel
-``mask_bits``  kernel → page   the exact mask, bit-packed (row i = bit i % 8 of byte i // 8)
-``edit_seq``   page → kernel   the page's counter, bumped with every ranges edit it sends
-``answered_seq`` kernel → page the ``edit_seq`` the current ``mask_bits``/``count`` answer; the page
-                               shows its own preview until the answer to its latest edit arrives
-``height``     kernel → page   height of the chart in CSS pixels
-=============  ==============  ===========================================================================
+The traits are the only channel between kernel and front end; DEVELOPERS.md documents each of them
+(name, direction, type, meaning) in its "trait contract" table.
 """
 
 from __future__ import annotations
 
+import warnings
 from pathlib import Path
 
 import anywidget
@@ -28,28 +14,52 @@ import numpy as np
 import pandas as pd
 import traitlets as t
 
-from .encode import encode_frame, table_trait, to_frame
+from .encode import Column, encode_frame, quantise, table_trait, to_frame
 from .selection import MaskEvaluator, SelectionError, normalise, pack
 
 _STATIC = Path(__file__).parent / "static"
+
+
+def _take_rows(source, frame: pd.DataFrame, mask: np.ndarray):
+    """The selected rows in the same type as the table the user gave."""
+    mod = type(source).__module__.split(".")[0]
+    if isinstance(source, pd.DataFrame) or source is None:
+        return frame[mask]
+    if mod == "polars":
+        import polars as pl
+
+        return source.filter(pl.Series(mask))
+    if mod == "pyarrow" and hasattr(source, "filter"):
+        import pyarrow as pa
+
+        return source.filter(pa.array(mask))
+    if isinstance(source, np.ndarray):
+        return source[mask]
+    if isinstance(source, dict):
+        return {k: np.asarray(v)[mask] for k, v in source.items()}
+    return frame[mask]  # Arrow stream objects: the stream is consumed, a pandas frame comes back
 
 
 class AxesWidget(anywidget.AnyWidget):
     """Parallel coordinates for a table: one vertical axis per column, one line per row.
 
     Drag along an axis to select a range; the exact selection is available as :attr:`mask` (a numpy
-    bool array) and :attr:`selected` (the rows of the original frame, original index kept).
+    bool array) and :attr:`selected` (the selected rows, in the input's own type, original index kept).
 
     Parameters
     ----------
-    frame:
-        a pandas DataFrame.
+    data:
+        a pandas or polars DataFrame, a pyarrow Table/RecordBatch, an object with the Arrow PyCapsule
+        stream interface, a dict of 1-D arrays, or a 2-D numpy array (with ``names``).
     axes:
-        column names to show, in order. ``None`` shows every numeric column.
+        column names to show, in order. ``None`` shows every column that can be drawn; the others are
+        skipped with one warning.
     ranges:
-        an initial selection, ``{axis: [[lo, hi], ...]}``.
+        an initial selection (see :mod:`axeswidget.selection` for its form).
     height:
         chart height in CSS pixels.
+    names:
+        column names for a 2-D numpy array.
     """
 
     _esm = _STATIC / "widget.js"
@@ -57,22 +67,31 @@ class AxesWidget(anywidget.AnyWidget):
     table = t.Dict().tag(sync=True)
     order = t.List(t.Unicode()).tag(sync=True, echo_update=False)
     ranges = t.Dict().tag(sync=True, echo_update=False)
+    log_axes = t.List(t.Unicode()).tag(sync=True)
     count = t.Int(0).tag(sync=True)
     mask_bits = t.Bytes(b"").tag(sync=True)
     edit_seq = t.Int(0).tag(sync=True, echo_update=False)
     answered_seq = t.Int(0).tag(sync=True)
     height = t.Int(380).tag(sync=True)
+    views = t.List(t.Unicode()).tag(sync=True)
 
-    def __init__(self, frame, axes=None, *, ranges=None, height: int = 380, **kwargs):
+    def __init__(self, data, axes=None, *, ranges=None, height: int = 380, names=None, **kwargs):
         super().__init__(height=height, **kwargs)
-        self._frame = to_frame(frame)
-        self._columns = encode_frame(self._frame, axes)
-        self._evaluator = MaskEvaluator(self._columns, len(self._frame))
-        self.table = table_trait(self._columns, len(self._frame))
+        self._axes_arg = axes
+        self._load(data, axes, names)
         self.order = list(self._columns)
         self._apply({})
         if ranges:
             self.ranges = ranges
+
+    def _load(self, data, axes, names=None) -> None:
+        frame = to_frame(data, names)
+        columns = encode_frame(frame, axes)
+        self._source = None if isinstance(data, pd.DataFrame) else data
+        self._frame = frame
+        self._columns = columns
+        self._evaluator = MaskEvaluator(self._columns, len(self._frame))
+        self.table = table_trait(self._columns, len(self._frame))
 
     # -- traits ------------------------------------------------------------------------------------
     @t.validate("ranges")
@@ -90,10 +109,37 @@ class AxesWidget(anywidget.AnyWidget):
             known = ", ".join(map(repr, self._columns))
             raise t.TraitError(f"unknown axis {unknown[0]!r} in order; the axes are: {known}")
         if len(set(order)) != len(order):
-            raise t.TraitError(
-                "order names an axis twice: " + ", ".join(sorted({a for a in order if order.count(a) > 1}))
-            )
+            twice = sorted({a for a in order if order.count(a) > 1})
+            raise t.TraitError("order names an axis twice: " + ", ".join(twice))
         return order
+
+    @t.validate("log_axes")
+    def _check_log(self, proposal):
+        out = []
+        for axis in proposal["value"]:
+            col = self._columns.get(axis)
+            if col is None:
+                raise t.TraitError(
+                    f"unknown axis {axis!r} in log_axes; the axes are: {', '.join(self._columns)}"
+                )
+            if col.kind not in ("number", "integer"):
+                raise t.TraitError(f"axis {axis!r} is a {col.kind} axis; a log scale needs numbers")
+            if not col.lo > 0:
+                raise t.TraitError(
+                    f"axis {axis!r} has values <= 0 (smallest {col.lo:g}); a log scale needs positive data"
+                )
+            if axis not in out:
+                out.append(axis)
+        return out
+
+    @t.observe("log_axes")
+    def _on_log(self, change):
+        for col in self._columns.values():
+            want = col.name in change["new"]
+            if col.log != want:
+                col.log = want
+                col.codes = quantise(col.axis_units(), col.lo, col.hi, col.log, col.missing)
+        self.table = table_trait(self._columns, len(self._frame))
 
     @t.observe("ranges", "edit_seq")
     def _on_ranges(self, change):
@@ -111,32 +157,95 @@ class AxesWidget(anywidget.AnyWidget):
     # -- public API --------------------------------------------------------------------------------
     @property
     def mask(self) -> np.ndarray:
-        """Boolean array, one entry per row: True where the row is inside every axis's ranges."""
+        """Boolean array, one entry per row: True where the row is picked on every axis with a selection."""
         return self._evaluator.mask
 
     @property
-    def selected(self) -> pd.DataFrame:
-        """The selected rows of the original table, original index kept."""
-        return self._frame[self.mask]
+    def selected(self):
+        """The selected rows, in the input's own type (pandas: original index kept)."""
+        return _take_rows(self._source, self._frame, self.mask)
 
     @property
     def data(self) -> pd.DataFrame:
-        """The table the widget shows."""
+        """The table the widget shows, as a pandas DataFrame (the widget's own snapshot)."""
         return self._frame
+
+    @data.setter
+    def data(self, new) -> None:
+        """Show a new table; ranges and order on columns that still exist are kept (ranges clipped)."""
+        old_ranges, old_order, old_log = dict(self.ranges), list(self.order), list(self.log_axes)
+        old_cols = self._columns
+        self._load(new, self._axes_arg)
+        dropped = []
+        kept = {}
+        for axis, items in old_ranges.items():
+            col = self._columns.get(axis)
+            if col is None or col.kind != old_cols[axis].kind:
+                dropped.append(axis)
+                continue
+            clipped = _clip_items(items, col)
+            if clipped:
+                kept[axis] = clipped
+            else:
+                dropped.append(axis)
+        order = [a for a in old_order if a in self._columns]
+        order += [a for a in self._columns if a not in order]
+        with self.hold_trait_notifications():
+            self.log_axes = [a for a in old_log if a in self._columns and self._columns[a].lo > 0]
+            self.order = order
+            self._evaluator.ranges = {"__reload__": []}  # force a full evaluation
+            self.ranges = kept
+            self._apply(self.ranges)
+        if dropped:
+            warnings.warn(
+                "axeswidget: dropped selections on axes that are gone, changed kind or fall outside the "
+                f"new data: {', '.join(map(repr, dropped))}",
+                stacklevel=2,
+            )
 
     @property
     def axes(self) -> list[str]:
         """Names of the axes the widget draws (in the table's order; see ``order`` for the drawn order)."""
         return list(self._columns)
 
+    def column(self, axis: str) -> Column:
+        """The encoded column behind an axis (kind, domain, labels, exact values)."""
+        if axis not in self._columns:
+            raise KeyError(f"unknown axis {axis!r}; the axes are: {', '.join(map(repr, self._columns))}")
+        return self._columns[axis]
+
     def clear(self, axis: str | None = None) -> None:
-        """Remove the ranges on one axis, or on all axes when ``axis`` is None."""
+        """Remove the selection on one axis, or on all axes when ``axis`` is None."""
         if axis is None:
             self.ranges = {}
             return
-        if axis not in self._columns:
-            raise KeyError(f"unknown axis {axis!r}; the axes are: {', '.join(map(repr, self._columns))}")
+        self.column(axis)
         self.ranges = {k: v for k, v in self.ranges.items() if k != axis}
 
     def __repr__(self) -> str:
         return f"AxesWidget({len(self._columns)} axes, {self.count} of {len(self._frame)} rows selected)"
+
+
+def _clip_items(items: list, col: Column) -> list:
+    """Items of an old selection that still make sense on a new column (ranges clipped to its domain)."""
+    out = []
+    for item in items:
+        if item is None:
+            out.append(None)
+        elif isinstance(item, str):
+            if item in (col.labels or []):
+                out.append(item)
+        elif col.kind in ("number", "integer", "timedelta"):
+            scale = 1e9 if col.kind == "timedelta" else 1.0
+            lo, hi = col.lo / scale, col.hi / scale
+            a = item[0] if item[0] is None else max(item[0], lo)
+            b = item[1] if item[1] is None else min(item[1], hi)
+            if (
+                (a is None or b is None or a <= b)
+                and not (a is not None and a > hi)
+                and not (b is not None and b < lo)
+            ):
+                out.append([a, b])
+        else:
+            out.append(item)
+    return out

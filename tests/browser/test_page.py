@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 import pytest
 
 import axeswidget as aw
@@ -48,3 +49,49 @@ def test_range_set_in_python_is_drawn(show, fleet):
     after = s.pixel(x + 5, y_mid)
     assert before[3] == 0 and after[3] > 0  # the band's translucent fill is painted beside the axis
     assert int(s.root().get_attribute("data-count")) == int(fleet["head_m"].between(25, 35).sum())
+
+
+def test_category_and_datetime_axes_brushed_with_the_mouse(show, fleet):
+    w = aw.AxesWidget(fleet, axes=["site", "efficiency_pct", "last_service", "fault"])
+    s = show(w)
+    lay = s.layout()
+    i = [a["name"] for a in lay["axes"]].index("site")
+    band = next(b for b in lay["categoryBands"][i] if b["label"] == "Red Gully")
+    box = s.canvas_box()
+    s.page.mouse.click(s.x_of("site"), box["y"] + (band["y0"] + band["y1"]) / 2)
+    s.settle()
+    # a datetime range dragged with the mouse (axis units are nanoseconds)
+    t0 = pd.Timestamp("2025-03-01").value
+    t1 = pd.Timestamp("2026-02-01").value
+    s.drag("last_service", t1, t0)
+    s.round_trip()
+    assert w.ranges["site"] == ["Red Gully"]
+    lo, hi = (pd.Timestamp(v) for v in w.ranges["last_service"][0])
+    assert (
+        abs((lo - pd.Timestamp("2025-03-01")).days) < 20 and abs((hi - pd.Timestamp("2026-02-01")).days) < 20
+    )
+    # references: Series.isin and Series.between
+    ref = fleet["site"].isin(["Red Gully"]) & fleet["last_service"].between(lo, hi)
+    np.testing.assert_array_equal(w.mask, ref.to_numpy())
+    assert int(s.root().get_attribute("data-count")) == int(ref.sum())
+    # the missing-values lane and a boolean band are clicked like categories
+    lay = s.layout()
+    s.page.mouse.click(s.x_of("fault"), box["y"] + lay["laneY"])
+    s.round_trip()
+    assert w.ranges["fault"] == [None]
+    assert w.count == 0  # the fault flag has no missing values (reference: fleet["fault"].isna().sum() == 0)
+    assert fleet["fault"].isna().sum() == 0
+    assert not s.errors
+
+
+def test_names_and_labels_are_text_never_html(show):
+    evil_col = "<img src=x onerror=alert(1)>"
+    evil_label = "<script>alert(2)</script>"
+    df = pd.DataFrame({evil_col: [1.0, 2.0, 3.0], "kind": [evil_label, "ok", evil_label]})
+    w = aw.AxesWidget(df)
+    s = show(w)
+    s.page.wait_for_timeout(300)
+    assert s.page.locator("img").count() == 0
+    assert s.page.evaluate("() => document.querySelectorAll('script').length") == 1  # the host page's own
+    assert not [e for e in s.errors if "dialog" in e]
+    assert evil_col in s.root().get_attribute("data-layout")  # drawn as text on the canvas
