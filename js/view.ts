@@ -166,13 +166,18 @@ export class View {
     this.lastSync = performance.now();
     const sent = this.model.get("ranges") as TraitRanges;
     if (selKey(fromTrait(this.table, sent)) === selKey(this.sel)) {
-      // nothing new for the kernel: its last answer stands
+      // nothing new for the kernel: its last answer stands (but a finished drag is news)
+      if (!this.dragging && this.model.get("dragging")) {
+        this.model.set("dragging", false);
+        this.model.save_changes();
+      }
       if (!this.dragging && this.model.get("answered_seq") >= this.seqSent) this.adoptKernel();
       return;
     }
     this.seqSent = Math.max(this.seqSent, this.model.get("edit_seq") ?? 0) + 1;
     this.model.set("ranges", toTrait(this.table, this.sel, sent));
     this.model.set("edit_seq", this.seqSent);
+    this.model.set("dragging", this.dragging);
     this.model.save_changes();
   }
 

@@ -56,6 +56,7 @@ class Column:
     tz: str | None = None
     discrete: list | None = None  # distinct values of an integer axis (ticks sit on them)
     labels: list[str] | None = None  # category labels, axis order (first = bottom)
+    raw_labels: list | None = None  # the original category values behind the labels
     label_codes: np.ndarray | None = None  # int32 index into labels per row, -1 missing
     counts: list[int] | None = None
     codes: np.ndarray = field(default=None, repr=False)
@@ -205,6 +206,7 @@ def _category_column(name, label, series: pd.Series) -> Column:
         codes = series.cat.codes.to_numpy().astype(np.int32)
         counts = np.bincount(codes[codes >= 0], minlength=len(cats))
         labels = [str(c) for c in cats]
+        raw = cats
         kind = "category"
     else:
         values = series.to_numpy(dtype=object)
@@ -228,10 +230,11 @@ def _category_column(name, label, series: pd.Series) -> Column:
         labels = [str(uniq[i]) for i in order]
         counts = counts[order]
         kind = "boolean" if is_bool else "category"
+        raw = [lab == "True" for lab in labels] if is_bool else labels
     if len(set(labels)) != len(labels):
         dupes = sorted({lab for lab in labels if labels.count(lab) > 1})
         raise ColumnError(f"column {name!r}: different labels read the same as text: {dupes[:5]}")
-    col = Column(name=name, kind=kind, source=label, missing=missing, labels=labels)
+    col = Column(name=name, kind=kind, source=label, missing=missing, labels=labels, raw_labels=list(raw))
     col.label_codes = codes
     col.counts = [int(c) for c in counts]
     return col

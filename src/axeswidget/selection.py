@@ -254,3 +254,59 @@ class MaskEvaluator:
 def pack(mask: np.ndarray) -> bytes:
     """Bit-pack a mask for the front end: bit i of byte i // 8 (little bit order) is row i."""
     return np.packbits(mask, bitorder="little").tobytes()
+
+
+# -- selection as code --------------------------------------------------------------------------------
+def _quote(col: Column) -> str:
+    label = col.source
+    if not isinstance(label, str):
+        raise SelectionError(
+            f"column {col.name!r}: its label {label!r} is not a string, so DataFrame.query cannot refer to it"
+        )
+    if "`" in label:
+        raise SelectionError(f"column {label!r}: a name with a backtick cannot be quoted in DataFrame.query")
+    return f"`{label}`"
+
+
+def _literal(value, col: Column) -> str:
+    if col.kind == "datetime":
+        return repr(pd.Timestamp(value).isoformat())
+    if col.kind == "timedelta":
+        return repr(str(pd.Timedelta(int(round(value * 1e9)), unit="ns")))
+    return repr(float(value))
+
+
+def axis_query(col: Column, items: list) -> str:
+    """A DataFrame.query expression for one axis's items (OR of its parts)."""
+    name = _quote(col)
+    parts = []
+    if col.kind in ("category", "boolean"):
+        picked = [col.raw_labels[col.labels.index(i)] for i in items if i is not None]
+        if picked:
+            values = [v.item() if isinstance(v, np.generic) else v for v in picked]
+            parts.append(f"{name} in {values!r}")
+    else:
+        for lo, hi in (i for i in items if i is not None):
+            sides = ([f"{name} >= {_literal(lo, col)}"] if lo is not None else []) + (
+                [f"{name} <= {_literal(hi, col)}"] if hi is not None else []
+            )
+            parts.append(" and ".join(sides) if sides else f"{name}.notna()")
+    if None in items:
+        parts.append(f"{name}.isna()")
+    if len(parts) == 1:
+        return parts[0]
+    return " or ".join(f"({p})" for p in parts)
+
+
+def to_query(ranges: Ranges, columns: Mapping[str, Column]) -> str:
+    """A pandas ``DataFrame.query`` expression that picks exactly the rows of a selection.
+
+    Axes combine with ``and``, items on one axis with ``or``; an empty selection gives
+    ``"index == index"`` (every row).
+    """
+    parts = [axis_query(columns[axis], items) for axis, items in ranges.items() if items]
+    if not parts:
+        return "index == index"
+    if len(parts) == 1:
+        return parts[0]
+    return " and ".join(f"({p})" for p in parts)

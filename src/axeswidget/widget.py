@@ -6,6 +6,7 @@ The traits are the only channel between kernel and front end; DEVELOPERS.md docu
 
 from __future__ import annotations
 
+import time
 import warnings
 from pathlib import Path
 
@@ -15,7 +16,7 @@ import pandas as pd
 import traitlets as t
 
 from .encode import Column, encode_frame, quantise, table_trait, to_frame
-from .selection import MaskEvaluator, SelectionError, normalise, pack
+from .selection import MaskEvaluator, SelectionError, normalise, pack, to_query
 
 _STATIC = Path(__file__).parent / "static"
 
@@ -71,6 +72,8 @@ class AxesWidget(anywidget.AnyWidget):
     count = t.Int(0).tag(sync=True)
     mask_bits = t.Bytes(b"").tag(sync=True)
     edit_seq = t.Int(0).tag(sync=True, echo_update=False)
+    dragging = t.Bool(False).tag(sync=True, echo_update=False)
+    saved = t.Dict().tag(sync=True)
     answered_seq = t.Int(0).tag(sync=True)
     height = t.Int(380).tag(sync=True)
     views = t.List(t.Unicode()).tag(sync=True)
@@ -78,6 +81,8 @@ class AxesWidget(anywidget.AnyWidget):
     def __init__(self, data, axes=None, *, ranges=None, height: int = 380, names=None, **kwargs):
         super().__init__(height=height, **kwargs)
         self._axes_arg = axes
+        self._callbacks: list[list] = []  # [callback, min_interval_while_dragging, last_call_time]
+        self._was_dragging = False
         self._load(data, axes, names)
         self.order = list(self._columns)
         self._apply({})
@@ -141,18 +146,33 @@ class AxesWidget(anywidget.AnyWidget):
                 col.codes = quantise(col.axis_units(), col.lo, col.hi, col.log, col.missing)
         self.table = table_trait(self._columns, len(self._frame))
 
-    @t.observe("ranges", "edit_seq")
+    @t.observe("ranges", "edit_seq", "dragging")
     def _on_ranges(self, change):
-        # both may arrive in one message from the page; notifications fire after both are set
+        # ranges, edit_seq and dragging may arrive in one message from the page; notifications fire
+        # after all of them are set
         self._apply(self.ranges)
 
     def _apply(self, ranges):
+        changed = ranges != self._evaluator.ranges or not self.mask_bits
         with self.hold_sync():
-            if ranges != self._evaluator.ranges or not self.mask_bits:
+            if changed:
                 mask = self._evaluator.update(ranges)
                 self.mask_bits = pack(mask)
                 self.count = int(mask.sum())
             self.answered_seq = self.edit_seq
+        self._notify(changed)
+
+    @t.validate("saved")
+    def _check_saved(self, proposal):
+        out = {}
+        for name, ranges in proposal["value"].items():
+            if not isinstance(name, str) or not name:
+                raise t.TraitError(f"a saved selection needs a non-empty text name, got {name!r}")
+            try:
+                out[name] = normalise(ranges, self._columns)
+            except SelectionError as err:
+                raise t.TraitError(f"saved selection {name!r}: {err}") from None
+        return out
 
     # -- public API --------------------------------------------------------------------------------
     @property
@@ -202,6 +222,91 @@ class AxesWidget(anywidget.AnyWidget):
                 f"new data: {', '.join(map(repr, dropped))}",
                 stacklevel=2,
             )
+
+    # -- selections as objects ---------------------------------------------------------------------
+    def on_change(self, callback, *, every: float = 0.3):
+        """Call ``callback(widget)`` whenever the selection changes.
+
+        While a range is being dragged on the page the callback runs at most once per ``every``
+        seconds; when the mouse is released it always runs once more with the final selection.
+        Changes made from Python call it at once. Returns the callback (usable as a decorator).
+        """
+        self._callbacks.append([callback, float(every), 0.0])
+        return callback
+
+    def off_change(self, callback) -> None:
+        """Stop calling a callback registered with :meth:`on_change`."""
+        self._callbacks = [c for c in self._callbacks if c[0] is not callback]
+
+    def _notify(self, changed: bool) -> None:
+        final = not self.dragging
+        released = final and self._was_dragging
+        self._was_dragging = self.dragging
+        if not (changed or released):
+            return
+        now = time.monotonic()
+        for entry in list(self._callbacks):
+            callback, every, last = entry
+            if not final and now - last < every:
+                continue  # throttled while dragging; the release always calls
+            entry[2] = now
+            callback(self)
+
+    def to_query(self) -> str:
+        """A pandas ``DataFrame.query`` expression that reproduces the selection exactly.
+
+        ``frame.query(w.to_query())`` gives the same rows as ``w.selected`` for a pandas frame.
+        """
+        try:
+            return to_query(self.ranges, self._columns)
+        except SelectionError as err:
+            raise ValueError(str(err)) from None
+
+    def keep(self, name: str) -> None:
+        """Keep the current selection under a name (replacing one of the same name)."""
+        self.saved = {**self.saved, name: self.ranges}
+
+    def recall(self, name: str) -> None:
+        """Put a kept selection back on the axes."""
+        if name not in self.saved:
+            raise KeyError(
+                f"no saved selection {name!r}; saved: {', '.join(map(repr, self.saved)) or 'none'}"
+            )
+        self.ranges = self.saved[name]
+
+    def forget(self, name: str) -> None:
+        """Delete a kept selection."""
+        if name not in self.saved:
+            raise KeyError(
+                f"no saved selection {name!r}; saved: {', '.join(map(repr, self.saved)) or 'none'}"
+            )
+        self.saved = {k: v for k, v in self.saved.items() if k != name}
+
+    def group_mask(self, name: str) -> np.ndarray:
+        """The exact mask of a kept selection (without putting it on the axes)."""
+        if name not in self.saved:
+            raise KeyError(
+                f"no saved selection {name!r}; saved: {', '.join(map(repr, self.saved)) or 'none'}"
+            )
+        return MaskEvaluator(self._columns, len(self._frame)).update(self.saved[name])
+
+    def labels(self, *, others: str | None = None) -> pd.Series:
+        """Each row's group among the kept selections, as a categorical Series on the data's index.
+
+        A row in several groups gets the *first* kept group that contains it (in the order they were
+        kept); a row in none gets ``others`` (missing by default). Categories are the group names in
+        order (plus ``others`` when given).
+        """
+        names = list(self.saved)
+        codes = np.full(len(self._frame), -1, dtype=np.int64)
+        for i, name in reversed(list(enumerate(names))):
+            codes[self.group_mask(name)] = i
+        cats = names + ([others] if others is not None and others not in names else [])
+        if others is not None:
+            codes[codes < 0] = cats.index(others)
+        return pd.Series(
+            pd.Categorical.from_codes(codes, categories=cats), index=self._frame.index, name="group"
+        )
 
     @property
     def axes(self) -> list[str]:

@@ -95,3 +95,35 @@ def test_names_and_labels_are_text_never_html(show):
     assert s.page.evaluate("() => document.querySelectorAll('script').length") == 1  # the host page's own
     assert not [e for e in s.errors if "dialog" in e]
     assert evil_col in s.root().get_attribute("data-layout")  # drawn as text on the canvas
+
+
+def test_two_ranges_on_one_axis_and_one_on_another_then_delete_one(show, fleet):
+    w = aw.AxesWidget(fleet, axes=["flow_m3h", "head_m", "power_kw"])
+    s = show(w)
+    s.drag("head_m", 15, 25)
+    s.drag("head_m", 45, 60)
+    s.drag("power_kw", 5, 20)
+    s.round_trip()
+    spans = w.ranges["head_m"]
+    assert len(spans) == 2 and len(w.ranges["power_kw"]) == 1
+    (a0, a1), (b0, b1) = spans
+    p0, p1 = w.ranges["power_kw"][0]
+    # reference: pandas Series.between, OR within an axis, AND across axes
+    ref = (fleet["head_m"].between(a0, a1) | fleet["head_m"].between(b0, b1)) & fleet["power_kw"].between(
+        p0, p1
+    )
+    np.testing.assert_array_equal(w.mask, ref.to_numpy())
+    assert int(s.root().get_attribute("data-count")) == int(ref.sum())
+    # double-click the upper range on head_m: it goes, the other stays
+    s.page.mouse.dblclick(s.x_of("head_m"), s.y_of("head_m", (b0 + b1) / 2))
+    s.round_trip()
+    assert w.ranges["head_m"] == [[a0, a1]]
+    ref = fleet["head_m"].between(a0, a1) & fleet["power_kw"].between(p0, p1)  # reference: Series.between
+    np.testing.assert_array_equal(w.mask, ref.to_numpy())
+    # a selection set from Python appears on the page
+    w.ranges = {"flow_m3h": [[50, 80], [120, 150]]}
+    s.pull_from_kernel()
+    bands = [b for b in s.layout()["bands"] if b["name"] == "flow_m3h"]
+    assert len(bands) == 2 and not [b for b in s.layout()["bands"] if b["name"] == "head_m"]
+    assert int(s.root().get_attribute("data-count")) == w.count
+    assert not s.errors
