@@ -11,6 +11,8 @@
 // Every axis:
 //   click the box below the axis    -> pick / unpick the missing-values lane
 //   click on empty axis space       -> clear everything picked on that axis
+//   drag the header sideways        -> move the axis to another slot
+//   click the header                -> flip the axis (largest values at the bottom)
 
 import { axisAt, type Layout } from "./layout";
 import type { AxisScale } from "./scales";
@@ -24,10 +26,14 @@ export interface BrushHost {
   preview(s: Sel): void;
   /** final selection at the end of a gesture */
   commit(s: Sel): void;
+  /** turn an axis upside down */
+  flip(axis: string): void;
+  /** a new axis order (while dragging a header, then final) */
+  reorder(order: string[], final: boolean): void;
 }
 
 export type Hit =
-  | { kind: "create" | "lane" | "empty"; axis: string; index: number }
+  | { kind: "create" | "lane" | "empty" | "header"; axis: string; index: number }
   | { kind: "band"; axis: string; index: number; band: number }
   | { kind: "move" | "lo" | "hi"; axis: string; index: number; span: number };
 
@@ -37,6 +43,10 @@ const CLICK_PX = 3;
 /** What the pointer at (x, y) would act on. */
 export function hitTest(host: BrushHost, x: number, y: number): Hit | null {
   const layout = host.layout();
+  if (y < layout.top - 10) {
+    const h = headerAt(layout, x);
+    return h < 0 ? null : { kind: "header", axis: layout.slots[h].name, index: h };
+  }
   const index = axisAt(layout, x);
   if (index < 0) return null;
   const name = layout.slots[index].name;
@@ -63,6 +73,30 @@ export function hitTest(host: BrushHost, x: number, y: number): Hit | null {
   return { kind: "create", axis: name, index };
 }
 
+/** Index of the axis whose header column contains x (half the gap either side), or -1. */
+function headerAt(layout: Layout, x: number): number {
+  const k = layout.slots.length;
+  if (!k) return -1;
+  const half = k > 1 ? (layout.slots[1].x - layout.slots[0].x) / 2 : layout.width / 2;
+  return layout.slots.findIndex((s) => Math.abs(s.x - x) <= half);
+}
+
+/** The order with one axis moved to the slot nearest x. */
+function movedOrder(layout: Layout, from: number, x: number): string[] {
+  const names = layout.slots.map((s) => s.name);
+  let to = 0;
+  let best = Infinity;
+  layout.slots.forEach((s, i) => {
+    if (Math.abs(s.x - x) < best) {
+      best = Math.abs(s.x - x);
+      to = i;
+    }
+  });
+  const [name] = names.splice(from, 1);
+  names.splice(to, 0, name);
+  return names;
+}
+
 const CURSOR: Record<string, string> = {
   create: "crosshair",
   move: "grab",
@@ -71,10 +105,11 @@ const CURSOR: Record<string, string> = {
   band: "pointer",
   lane: "pointer",
   empty: "default",
+  header: "grab",
 };
 
 export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
-  let drag: { hit: Hit; y0: number; start: Sel; moved: boolean } | null = null;
+  let drag: { hit: Hit; x0: number; y0: number; start: Sel; moved: boolean; order: string[] } | null = null;
 
   const local = (e: PointerEvent | MouseEvent) => {
     const r = canvas.getBoundingClientRect();
@@ -133,7 +168,8 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
     if (!hit) return;
     e.preventDefault();
     canvas.setPointerCapture?.(e.pointerId);
-    drag = { hit, y0: y, start: cloneSel(host.selection()), moved: false };
+    const order = host.layout().slots.map((s) => s.name);
+    drag = { hit, x0: x, y0: y, start: cloneSel(host.selection()), moved: false, order };
     canvas.style.cursor = hit.kind === "move" ? "grabbing" : CURSOR[hit.kind];
   };
 
@@ -144,6 +180,16 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
       canvas.style.cursor = hit ? CURSOR[hit.kind] : "default";
       return;
     }
+    if (drag.hit.kind === "header") {
+      if (!drag.moved && Math.abs(x - drag.x0) < CLICK_PX) return;
+      drag.moved = true;
+      canvas.style.cursor = "grabbing";
+      const layout = host.layout();
+      const from = layout.slots.findIndex((s) => s.name === drag!.hit.axis);
+      const next = movedOrder(layout, from, x);
+      if (next.join("\u0000") !== layout.slots.map((s) => s.name).join("\u0000")) host.reorder(next, false);
+      return;
+    }
     if (!drag.moved && Math.abs(y - drag.y0) < CLICK_PX) return;
     if (drag.hit.kind === "lane" || drag.hit.kind === "empty") return;
     drag.moved = true;
@@ -152,6 +198,14 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
 
   const up = (e: PointerEvent) => {
     if (!drag) return;
+    if (drag.hit.kind === "header") {
+      const d = drag;
+      drag = null;
+      canvas.style.cursor = "default";
+      if (d.moved) host.reorder(host.layout().slots.map((s) => s.name), true);
+      else host.flip(d.hit.axis);
+      return;
+    }
     const result = drag.moved ? dragged(local(e).y) : clicked();
     drag = null;
     canvas.style.cursor = "default";

@@ -32,8 +32,8 @@ export function readTheme(el: Element): Theme {
   };
 }
 
-export function scalesFor(table: Table, layout: Layout): AxisScale[] {
-  return layout.slots.map((s) => new AxisScale(table.byName.get(s.name)!, layout.top, layout.bottom));
+export function scalesFor(table: Table, layout: Layout, flipped: Set<string> = new Set()): AxisScale[] {
+  return layout.slots.map((s) => new AxisScale(table.byName.get(s.name)!, layout.top, layout.bottom, flipped.has(s.name)));
 }
 
 /** Opacity of one line, from the number of rows drawn: dense tables get fainter lines. */
@@ -155,6 +155,9 @@ function header(ctx: CanvasRenderingContext2D, name: string, x: number, max: num
   ctx.fillText(fitText(ctx, name, max), x, 14);
 }
 
+/** Okabe–Ito vermillion: negative associations between neighbours */
+const NEGATIVE = "#D55E00";
+
 const KIND_MARK: Record<string, string> = {
   number: "num",
   integer: "int",
@@ -171,6 +174,7 @@ export function drawOverlay(
   scales: AxisScale[],
   sel: Sel,
   theme: Theme,
+  readouts: { value: number }[] = [],
 ): void {
   ctx.clearRect(0, 0, layout.width, layout.height);
   const k = layout.slots.length;
@@ -228,23 +232,25 @@ export function drawOverlay(
       if (neg) label(ctx, `−∞ ${neg}`, x + 6, layout.bottom + 8, theme);
       ctx.globalAlpha = 1;
       for (const [lo, hi] of s?.spans ?? []) {
-        const yTop = Math.max(layout.top - 2, sc.toPixel(hi));
-        const yBot = Math.min(layout.bottom + 2, sc.toPixel(lo));
+        const yHi = sc.toPixel(hi);
+        const yLo = sc.toPixel(lo);
+        const yTop = Math.max(layout.top - 2, Math.min(yHi, yLo));
+        const yBot = Math.min(layout.bottom + 2, Math.max(yHi, yLo));
         ctx.fillStyle = theme.band;
         ctx.fillRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
         ctx.strokeStyle = theme.bandEdge;
         ctx.strokeRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
         ctx.fillStyle = theme.fg;
         ctx.font = `600 10px ${theme.font}`;
-        const hiText = hi === Infinity ? "▲ open" : sc.format(hi);
-        const loText = lo === -Infinity ? "▼ open" : sc.format(lo);
+        const hiText = hi === Infinity ? "open" : sc.format(hi);
+        const loText = lo === -Infinity ? "open" : sc.format(lo);
         // end values on the right of the axis, or on the left where the chart ends
         const wide = Math.max(ctx.measureText(hiText).width, ctx.measureText(loText).width);
         const right = x + 11 + wide <= layout.width;
         ctx.textAlign = right ? "left" : "right";
         const tx = right ? x + 11 : x - 11;
-        label(ctx, hiText, tx, yTop - 1, theme);
-        label(ctx, loText, tx, yBot + 1, theme);
+        label(ctx, sc.flipped ? loText : hiText, tx, yTop - 1, theme);
+        label(ctx, sc.flipped ? hiText : loText, tx, yBot + 1, theme);
       }
     }
     // header: name, and a small marker of the kind
@@ -254,7 +260,7 @@ export function drawOverlay(
     header(ctx, slot.name, x, Math.max(30, gap - 6), theme);
     ctx.font = `9px ${theme.font}`;
     ctx.fillStyle = theme.muted;
-    ctx.fillText(KIND_MARK[axis.kind] ?? axis.kind, x, 33);
+    ctx.fillText((KIND_MARK[axis.kind] ?? axis.kind) + (sc.flipped ? " ↓" : ""), x, 33);
     // missing-values lane: a box below the axis, filled when picked
     const lanePicked = !!s?.lane;
     ctx.globalAlpha = axis.missing || lanePicked ? 0.95 : 0.3;
@@ -273,5 +279,14 @@ export function drawOverlay(
       ctx.fillText(`∅ ${formatValue(axis.missing, 1)}`, x + 10, layout.laneY);
     }
     ctx.globalAlpha = 1;
+  });
+  // rank association between neighbours, midway between their headers
+  ctx.font = `10px ${theme.font}`;
+  ctx.textAlign = "center";
+  readouts.forEach((r, i) => {
+    if (i + 1 >= layout.slots.length || !isFinite(r.value)) return;
+    const x = (layout.slots[i].x + layout.slots[i + 1].x) / 2;
+    ctx.fillStyle = r.value >= 0 ? theme.line : NEGATIVE;
+    ctx.fillText(`ρ ${r.value >= 0 ? "+" : "−"}${Math.abs(r.value).toFixed(2)}`, x, 33);
   });
 }

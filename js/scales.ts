@@ -157,8 +157,21 @@ export class AxisScale {
     readonly axis: AxisData,
     readonly top: number,
     readonly bottom: number,
+    /** a flipped axis has its largest values (last bands) at the bottom */
+    readonly flipped = false,
   ) {
     if (isCategorical(axis)) this.layoutBands();
+  }
+
+  /** pixel of a position 0..1 along the axis */
+  private at(f: number): number {
+    return this.flipped ? this.top + f * (this.bottom - this.top) : this.bottom - f * (this.bottom - this.top);
+  }
+
+  /** position 0..1 along the axis of a pixel (clamped) */
+  private along(px: number): number {
+    const f = this.flipped ? (px - this.top) / (this.bottom - this.top) : (this.bottom - px) / (this.bottom - this.top);
+    return Math.min(1, Math.max(0, f));
   }
 
   private layoutBands() {
@@ -171,11 +184,16 @@ export class AxisScale {
     const avail = h - gap * (k - 1);
     const minH = Math.min(8, avail / k);
     const total = counts.reduce((a, b) => a + b, 0) || 1;
-    let y = this.bottom;
+    let y = this.flipped ? this.top : this.bottom;
     for (const c of counts) {
       const bh = minH + ((avail - k * minH) * c) / total;
-      this.bands.push({ y0: y - bh, y1: y });
-      y -= bh + gap;
+      if (this.flipped) {
+        this.bands.push({ y0: y, y1: y + bh });
+        y += bh + gap;
+      } else {
+        this.bands.push({ y0: y - bh, y1: y });
+        y -= bh + gap;
+      }
     }
   }
 
@@ -185,25 +203,24 @@ export class AxisScale {
 
   /** pixel of a data value in axis units (values outside the domain map outside the span) */
   toPixel(v: number): number {
-    if (v === Infinity) return this.top;
-    if (v === -Infinity) return this.bottom;
+    if (v === Infinity) return this.at(1);
+    if (v === -Infinity) return this.at(0);
     const f = fraction(this.axis, v);
     if (!isFinite(f)) return (this.top + this.bottom) / 2;
-    return this.bottom - f * (this.bottom - this.top);
+    return this.at(f);
   }
 
   /** data value (axis units) at a pixel, clamped to the domain */
   toValue(px: number): number {
     if (!(this.axis.hi > this.axis.lo)) return this.axis.lo;
-    const f = Math.min(1, Math.max(0, (this.bottom - px) / (this.bottom - this.top)));
-    return valueAt(this.axis, f);
+    return valueAt(this.axis, this.along(px));
   }
 
   /** pixel of a numeric wire code (NaN for the missing code) */
   codePixel(code: number): number {
     if (code > CODE_MAX) return NaN;
     if (!(this.axis.hi > this.axis.lo)) return (this.top + this.bottom) / 2;
-    return this.bottom - (code / CODE_MAX) * (this.bottom - this.top);
+    return this.at(code / CODE_MAX);
   }
 
   /** band code under a pixel on a category axis, or -1 */

@@ -1,5 +1,6 @@
 // One view of the widget (one per output cell): DOM, canvases, redraw scheduling and syncing.
 
+import { PairCache, rankCorrelation } from "./association";
 import { attachBrush } from "./brush";
 import { decodeTable, isCategorical, rowSpread, unpackMask, type RawTable, type Table } from "./data";
 import { drawLines, drawOverlay, readTheme, scalesFor, type Theme } from "./draw";
@@ -43,6 +44,7 @@ export class View {
   private dirtyLines = true;
   private dirtyOverlay = true;
   private cleanup: (() => void)[] = [];
+  private pairs = new PairCache();
 
   constructor(
     private model: Model,
@@ -80,6 +82,7 @@ export class View {
       this.invalidate(true);
     });
     this.listen("change:order", () => {
+      if (this.dragging) return;
       this.readOrder();
       this.invalidate(true);
     });
@@ -97,11 +100,17 @@ export class View {
     this.listen("change:mask_bits", onAnswer);
     this.listen("change:count", onAnswer);
     this.listen("change:height", () => this.resize());
+    this.listen("change:flipped", () => {
+      this.layoutCache = null;
+      this.invalidate(true);
+    });
 
     const detach = attachBrush(this.overlayCanvas, {
       layout: () => this.layout(),
       scales: () => this.scales(),
       selection: () => this.sel,
+      flip: (axis) => this.flip(axis),
+      reorder: (order, final) => this.reorder(order, final),
       preview: (r) => this.edit(r, false),
       commit: (r) => this.edit(r, true),
     });
@@ -119,6 +128,7 @@ export class View {
 
   private loadTable() {
     this.table = decodeTable(this.model.get("table") as RawTable);
+    this.pairs.clear();
     if (this.spread.length !== this.table.n) this.spread = rowSpread(this.table.n);
     this.readOrder();
   }
@@ -157,6 +167,40 @@ export class View {
     const wait = SYNC_MS - (performance.now() - this.lastSync);
     if (wait <= 0) this.sync();
     else if (this.syncTimer === undefined) this.syncTimer = window.setTimeout(() => this.sync(), wait);
+  }
+
+  private flip(axis: string) {
+    const now = new Set((this.model.get("flipped") as string[]) ?? []);
+    if (now.has(axis)) now.delete(axis);
+    else now.add(axis);
+    this.model.set("flipped", [...now]);
+    this.model.save_changes();
+    this.layoutCache = null;
+    this.invalidate(true);
+  }
+
+  private reorder(order: string[], final: boolean) {
+    this.order = order;
+    this.layoutCache = null;
+    this.invalidate(true);
+    if (final) {
+      this.model.set("order", order);
+      this.model.save_changes();
+    }
+  }
+
+  /** Rank association of each neighbouring pair (flips applied), from the page's codes. */
+  private readouts(): { left: string; right: string; value: number }[] {
+    const flipped = new Set((this.model.get("flipped") as string[]) ?? []);
+    const out = [];
+    for (let i = 0; i + 1 < this.order.length; i++) {
+      const a = this.table.byName.get(this.order[i])!;
+      const b = this.table.byName.get(this.order[i + 1])!;
+      let v = this.pairs.get(a.name, b.name, () => rankCorrelation(a.codes, b.codes));
+      if (flipped.has(a.name) !== flipped.has(b.name)) v = -v;
+      out.push({ left: a.name, right: b.name, value: v });
+    }
+    return out;
   }
 
   /** Send the ranges to the kernel (throttled while dragging; always on release). */
@@ -201,7 +245,8 @@ export class View {
       const h = Math.max(160, this.model.get("height") ?? 380);
       const first = this.table.byName.get(this.order[0]);
       this.layoutCache = computeLayout(w, h, this.order, !!first && isCategorical(first));
-      this.scaleCache = scalesFor(this.table, this.layoutCache);
+      const flipped = new Set((this.model.get("flipped") as string[]) ?? []);
+      this.scaleCache = scalesFor(this.table, this.layoutCache, flipped);
     }
     return this.layoutCache;
   }
@@ -239,7 +284,7 @@ export class View {
     if (this.dirtyOverlay) {
       const ctx = this.overlayCanvas.getContext("2d")!;
       ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-      drawOverlay(ctx, layout, this.scales(), this.sel, this.theme);
+      drawOverlay(ctx, layout, this.scales(), this.sel, this.theme, this.readouts());
       this.dirtyOverlay = false;
     }
     this.updateStatus(layout);
@@ -268,6 +313,8 @@ export class View {
       bands: layout.slots.flatMap((s, i) =>
         (this.sel[s.name]?.spans ?? []).map(([lo, hi]) => ({ name: s.name, x: s.x, yTop: sc[i].toPixel(hi), yBottom: sc[i].toPixel(lo) })),
       ),
+      flipped: sc.filter((x) => x.flipped).map((x) => x.axis.name),
+      readouts: this.readouts(),
       picked: Object.fromEntries(Object.entries(this.sel).map(([k, v]) => [k, { bands: v.bands, lane: v.lane }])),
     });
   }

@@ -69,6 +69,7 @@ class AxesWidget(anywidget.AnyWidget):
     order = t.List(t.Unicode()).tag(sync=True, echo_update=False)
     ranges = t.Dict().tag(sync=True, echo_update=False)
     log_axes = t.List(t.Unicode()).tag(sync=True)
+    flipped = t.List(t.Unicode()).tag(sync=True, echo_update=False)
     count = t.Int(0).tag(sync=True)
     mask_bits = t.Bytes(b"").tag(sync=True)
     edit_seq = t.Int(0).tag(sync=True, echo_update=False)
@@ -117,6 +118,18 @@ class AxesWidget(anywidget.AnyWidget):
             twice = sorted({a for a in order if order.count(a) > 1})
             raise t.TraitError("order names an axis twice: " + ", ".join(twice))
         return order
+
+    @t.validate("flipped")
+    def _check_flipped(self, proposal):
+        out = []
+        for axis in proposal["value"]:
+            if axis not in self._columns:
+                raise t.TraitError(
+                    f"unknown axis {axis!r} in flipped; the axes are: {', '.join(self._columns)}"
+                )
+            if axis not in out:
+                out.append(axis)
+        return out
 
     @t.validate("log_axes")
     def _check_log(self, proposal):
@@ -222,6 +235,61 @@ class AxesWidget(anywidget.AnyWidget):
                 f"new data: {', '.join(map(repr, dropped))}",
                 stacklevel=2,
             )
+
+    # -- axis order ----------------------------------------------------------------------------------
+    def _analysis_frame(self) -> pd.DataFrame:
+        """One column per axis for the association measures: numbers (dates as ns), labels as categories."""
+        out = {}
+        for name, col in self._columns.items():
+            if col.kind in ("category", "boolean"):
+                out[name] = pd.Categorical.from_codes(col.label_codes, categories=range(len(col.labels)))
+            else:
+                out[name] = col.axis_units()
+        return pd.DataFrame(out)
+
+    def association(self, metric: str = "spearman", *, max_rows: int | None = 200_000, seed: int = 0):
+        """Association between every pair of axes, as a DataFrame (see ``ordering.association``).
+
+        ``metric``: "pearson", "spearman", "kendall", "crossings" (count of crossing line pairs) or
+        "mutual_info" (normalised, binned; also for category axes). Above ``max_rows`` rows a seeded
+        sample is used; ``result.attrs`` says whether the result is exact.
+        """
+        from .ordering import association
+
+        return association(self._analysis_frame(), metric, max_rows=max_rows, seed=seed)
+
+    def reorder(self, metric: str = "spearman", *, maximize: bool = True, first: str | None = None, **kw):
+        """Choose the axis order from an association metric, apply it and return it.
+
+        ``maximize=True`` puts strongly associated columns side by side (good for reading
+        correlations); ``maximize=False`` puts dissimilar columns side by side, which a user study
+        found helpful for spotting clusters. ``first`` pins the first axis. For "crossings" the
+        order minimises crossings when ``maximize`` is True.
+        """
+        from .ordering import best_order
+
+        matrix = self.association(metric, **kw)
+        if metric == "crossings":
+            matrix = -matrix  # fewest crossings = largest negated count
+        if first is not None and first not in self._columns:
+            raise ValueError(f"unknown axis {first!r} for first=; the axes are: {', '.join(self._columns)}")
+        order = [
+            str(a) for a in best_order(matrix, maximize=maximize, absolute=metric != "crossings", first=first)
+        ]
+        self.order = order
+        return order
+
+    def untangle(self, metric: str = "spearman", **kw) -> list[str]:
+        """Flip axes so that every pair of neighbours is positively associated (fewer crossing lines).
+
+        Applies the flips to the page and returns the flipped axes.
+        """
+        from .ordering import suggest_flips
+
+        matrix = self.association(metric, **kw)
+        flips = [str(a) for a in suggest_flips(matrix, self.order)]
+        self.flipped = flips
+        return flips
 
     # -- selections as objects ---------------------------------------------------------------------
     def on_change(self, callback, *, every: float = 0.3):

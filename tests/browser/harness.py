@@ -107,6 +107,8 @@ class Shown:
         """Page y (CSS px) of a value on an axis, from the layout hook."""
         lay, ax = self.layout(), self.axis(name)
         f = (value - ax["lo"]) / (ax["hi"] - ax["lo"])
+        if name in lay.get("flipped", []):
+            f = 1 - f
         return self.canvas_box()["y"] + lay["bottom"] - f * (lay["bottom"] - lay["top"])
 
     def x_of(self, name: str) -> float:
