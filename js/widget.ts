@@ -1,5 +1,6 @@
 // anywidget entry point: wiring only. Each output cell showing the widget gets its own View.
 
+import { attachSharing, type SharingModel } from "./snapshot";
 import { View, type Model } from "./view";
 
 function render({ model, el }: { model: Model; el: HTMLElement }) {
@@ -15,7 +16,12 @@ function render({ model, el }: { model: Model; el: HTMLElement }) {
     el.appendChild(box);
     return () => box.remove();
   }
-  return () => view.destroy();
+  // a page without a kernel (an exported file) has nobody to register with or answer
+  const detach = model.get("_standalone") ? () => {} : attachSharing(model as unknown as SharingModel, view.root);
+  return () => {
+    detach();
+    view.destroy();
+  };
 }
 
 export default { render };

@@ -2,8 +2,9 @@
 
 from . import demo
 from .encode import ColumnError
+from .export import ExportError
 from .selection import SelectionError
 from .widget import AxesWidget
 
-__all__ = ["AxesWidget", "ColumnError", "SelectionError", "demo"]
+__all__ = ["AxesWidget", "ColumnError", "ExportError", "SelectionError", "demo"]
 __version__ = "0.1.0"

@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 import traitlets as t
 
+from . import export
 from .encode import Column, encode_frame, quantise, table_trait, to_frame
 from .selection import MaskEvaluator, SelectionError, normalise, pack, to_query
 
@@ -375,6 +376,25 @@ class AxesWidget(anywidget.AnyWidget):
         return pd.Series(
             pd.Categorical.from_codes(codes, categories=cats), index=self._frame.index, name="group"
         )
+
+    # -- sharing -------------------------------------------------------------------------------------
+    def save_png(self, path, scale: float = 1) -> export.PngRequest:
+        """Ask the page for a PNG of the chart at ``scale`` x its size on screen.
+
+        The page draws the picture and sends it back; in Jupyter the file is written once the cell
+        that asked has finished (a kernel reads messages from the page between cells). The returned
+        request object tells whether it is done (``.done``, ``.error``). Raises a clear error when no
+        view of the widget is showing.
+        """
+        return export.save_png(self, path, scale)
+
+    def to_html(self, path=None, *, title: str = "axeswidget chart"):
+        """One self-contained HTML page of the chart (code, data, current view) that works offline.
+
+        Brushing, reordering and flipping work there without a kernel; the page's own count stands in
+        for the kernel's. Returns the HTML text, or the path written when ``path`` is given.
+        """
+        return export.to_html(self, path, title=title)
 
     @property
     def axes(self) -> list[str]:

@@ -1,0 +1,140 @@
+// Sharing a view: the PNG snapshot the kernel asks for, and the list of live views the kernel keeps.
+//
+// Protocol (custom messages; nothing here is state, so nothing belongs in traits except `views`):
+//   kernel -> page  {type: "axw:png", id, scale}
+//   page -> kernel  {type: "axw:png", id, ok: true, width, height, bytes} + one buffer (the PNG file)
+//                   {type: "axw:png", id, ok: false, error}
+// Every page answers through the first live view of the model it holds; the kernel keeps the first
+// answer to an id and ignores the rest (several browser tabs may show the same kernel).
+
+import { readTheme } from "./draw";
+
+export const PNG_MESSAGE = "axw:png";
+/** Page -> server websocket messages above 10 MiB are dropped silently: stay well below. */
+export const PNG_MAX_BYTES = 8 * 1024 * 1024;
+export const PNG_MAX_SCALE = 4;
+
+type Handler = (content: any, buffers?: unknown[]) => void;
+
+/** The parts of the anywidget model that sharing needs. */
+export interface SharingModel {
+  get(name: string): any;
+  set(name: string, value: unknown): void;
+  save_changes(): void;
+  on(event: string, cb: Handler): void;
+  off(event: string, cb: Handler): void;
+  send?(content: unknown, callbacks?: unknown, buffers?: ArrayBuffer[]): void;
+}
+
+/** Live views in this page, per model, oldest first. */
+const liveViews = new WeakMap<object, string[]>();
+
+function randomId(): string {
+  const a = new Uint32Array(2);
+  crypto.getRandomValues(a); // unlike randomUUID, available outside secure contexts too (file://)
+  return Array.from(a, (v) => v.toString(36)).join("");
+}
+
+function setViews(model: SharingModel, change: (ids: string[]) => string[]) {
+  const now = (model.get("views") as string[] | undefined) ?? [];
+  model.set("views", change(now.slice()));
+  model.save_changes();
+}
+
+/**
+ * The picture of one view: the lines layer, the overlay on top and the status line drawn in the
+ * bottom-left corner, on the theme's background, at `scale` x the canvas's CSS size.
+ * Sharpest when `scale` equals the device pixel ratio the canvases were drawn at; otherwise resampled.
+ */
+export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob: Blob; width: number; height: number }> {
+  if (!(scale > 0 && scale <= PNG_MAX_SCALE)) throw new Error(`scale must be a number in (0, ${PNG_MAX_SCALE}], got ${scale}`);
+  const all = Array.from(root.querySelectorAll("canvas")) as HTMLCanvasElement[];
+  if (all.length === 0) throw new Error("this view has no chart to save");
+  const box = all[0].getBoundingClientRect();
+  const cssW = box.width;
+  const cssH = box.height;
+  if (cssW < 1 || cssH < 1) throw new Error("this view is not laid out (hidden or zero size); show it and try again");
+  // the chart's layers are the canvases stacked exactly on the first one
+  const layers = all.filter((c) => {
+    const r = c.getBoundingClientRect();
+    return Math.abs(r.left - box.left) < 0.5 && Math.abs(r.top - box.top) < 0.5 && Math.abs(r.width - cssW) < 0.5 && Math.abs(r.height - cssH) < 0.5;
+  });
+  const width = Math.round(cssW * scale);
+  const height = Math.round(cssH * scale);
+  const out = document.createElement("canvas");
+  out.width = width;
+  out.height = height;
+  const ctx = out.getContext("2d");
+  if (!ctx) throw new Error("the browser gave no 2-D canvas context");
+  const theme = readTheme(root);
+  ctx.fillStyle = theme.bg;
+  ctx.fillRect(0, 0, width, height);
+  ctx.imageSmoothingEnabled = true;
+  ctx.imageSmoothingQuality = "high";
+  for (const layer of layers) if (layer.width > 0 && layer.height > 0) ctx.drawImage(layer, 0, 0, width, height);
+  const status = root.querySelector(".axw-status")?.textContent ?? "";
+  if (status) {
+    ctx.setTransform(scale, 0, 0, scale, 0, 0);
+    ctx.font = `10px ${theme.font}`;
+    ctx.textBaseline = "bottom";
+    ctx.textAlign = "left";
+    ctx.lineWidth = 3;
+    ctx.lineJoin = "round";
+    ctx.strokeStyle = theme.bg;
+    ctx.strokeText(status, 4, cssH - 2);
+    ctx.fillStyle = theme.muted;
+    ctx.fillText(status, 4, cssH - 2);
+  }
+  const blob = await new Promise<Blob | null>((resolve) => out.toBlob(resolve, "image/png"));
+  if (!blob) throw new Error("the browser could not encode the PNG");
+  return { blob, width, height };
+}
+
+/**
+ * Register a view with the kernel (an id in the `views` trait, removed on teardown) and answer the
+ * kernel's PNG requests. Returns the teardown function.
+ */
+export function attachSharing(model: SharingModel, root: HTMLElement): () => void {
+  const id = randomId();
+  const ids = liveViews.get(model) ?? [];
+  liveViews.set(model, ids);
+  ids.push(id);
+  setViews(model, (now) => [...now.filter((v) => v !== id), id]);
+
+  const onMessage: Handler = (content) => {
+    if (!content || content.type !== PNG_MESSAGE) return;
+    if (liveViews.get(model)?.[0] !== id) return; // one answer per page: the oldest live view's
+    const reply = (body: object, buffers?: ArrayBuffer[]) =>
+      model.send?.({ type: PNG_MESSAGE, id: content.id, ...body }, undefined, buffers);
+    snapshot(root, Number(content.scale ?? 1))
+      .then(async ({ blob, width, height }) => {
+        if (blob.size > PNG_MAX_BYTES) {
+          const mib = (blob.size / 1048576).toFixed(1);
+          throw new Error(`the PNG would be ${mib} MiB, more than the ${PNG_MAX_BYTES / 1048576} MiB a page can send back; use a smaller scale`);
+        }
+        const bytes = await blob.arrayBuffer();
+        reply({ ok: true, width, height, bytes: bytes.byteLength }, [bytes]);
+      })
+      .catch((err) => reply({ ok: false, error: String((err as Error)?.message ?? err) }));
+  };
+  model.on("msg:custom", onMessage);
+
+  let gone = false;
+  const detach = () => {
+    if (gone) return;
+    gone = true;
+    model.off("msg:custom", onMessage);
+    window.removeEventListener("pagehide", detach);
+    const left = liveViews.get(model) ?? [];
+    const at = left.indexOf(id);
+    if (at >= 0) left.splice(at, 1);
+    try {
+      setViews(model, (now) => now.filter((v) => v !== id));
+    } catch {
+      // the model may already be closed; nothing left to tell
+    }
+  };
+  // a closed or reloaded tab tears nothing down: tell the kernel on the way out (best effort)
+  window.addEventListener("pagehide", detach);
+  return detach;
+}
