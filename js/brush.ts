@@ -30,6 +30,10 @@ export interface BrushHost {
   flip(axis: string): void;
   /** a new axis order (while dragging a header, then final) */
   reorder(order: string[], final: boolean): void;
+  /** the pointer rests at (x, y) away from the axes (hover a line) */
+  hover(x: number, y: number): void;
+  /** a click away from the axes: pin or unpin the hovered line */
+  pin(): void;
 }
 
 export type Hit =
@@ -165,7 +169,10 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
     if (e.button !== 0) return;
     const { x, y } = local(e);
     const hit = hitTest(host, x, y);
-    if (!hit) return;
+    if (!hit) {
+      host.pin();
+      return;
+    }
     e.preventDefault();
     canvas.setPointerCapture?.(e.pointerId);
     const order = host.layout().slots.map((s) => s.name);
@@ -178,6 +185,7 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
     if (!drag) {
       const hit = hitTest(host, x, y);
       canvas.style.cursor = hit ? CURSOR[hit.kind] : "default";
+      host.hover(hit ? -1 : x, hit ? -1 : y);
       return;
     }
     if (drag.hit.kind === "header") {

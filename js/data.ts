@@ -109,6 +109,11 @@ export function valueAt(a: AxisData, f: number): number {
   return a.lo + f * (a.hi * 0.5 - a.lo * 0.5) * 2;
 }
 
+/** The value (axis units) a numeric wire code stands for, to the quantisation step. */
+export function codeToValue(a: AxisData, code: number): number {
+  return code === CODE_MISSING ? NaN : valueAt(a, code / CODE_MAX);
+}
+
 /** Unpack the kernel's bit-packed mask (little bit order) into one byte per row. */
 export function unpackMask(bits: DataView | null | undefined, n: number): Uint8Array | null {
   if (!bits || bits.byteLength * 8 < n) return null;

@@ -1,5 +1,6 @@
 // Canvas painting: the lines layer and the overlay (axes, ticks, headers, lanes, selections).
 
+import { cssToRgb, luminance } from "./colour";
 import { CODE_MISSING, type Table } from "./data";
 import type { Layout } from "./layout";
 import { AxisScale, formatValue } from "./scales";
@@ -20,12 +21,14 @@ export interface Theme {
 export function readTheme(el: Element): Theme {
   const css = getComputedStyle(el);
   const v = (name: string, fallback: string) => css.getPropertyValue(name).trim() || fallback;
+  const bg = v("--jp-layout-color0", "#ffffff");
+  const dark = luminance(cssToRgb(bg)) < 0.4;
   return {
-    fg: v("--jp-ui-font-color1", "#1f1f1f"),
-    muted: v("--jp-ui-font-color2", "#6b6b6b"),
-    bg: v("--jp-layout-color0", "#ffffff"),
-    line: "#0072B2", // Okabe–Ito blue
-    faded: v("--jp-ui-font-color3", "#a0a0a0"),
+    fg: v("--jp-ui-font-color1", dark ? "#e8e8e8" : "#1f1f1f"),
+    muted: v("--jp-ui-font-color2", dark ? "#a8a8a8" : "#6b6b6b"),
+    bg,
+    line: dark ? "#56B4E9" : "#0072B2", // Okabe–Ito sky blue on dark, blue on light
+    faded: dark ? "#6a6a6a" : "#a0a0a0",
     band: "rgba(230, 159, 0, 0.24)", // Okabe–Ito orange, translucent
     bandEdge: "#C98A00",
     font: v("--jp-ui-font-family", "system-ui, -apple-system, 'Segoe UI', sans-serif"),
@@ -62,57 +65,6 @@ export function rowPlacement(scales: AxisScale[], layout: Layout): { base: Float
     base[CODE_MISSING] = layout.laneY;
     return { base, height };
   });
-}
-
-/**
- * Paint one polyline per row: rows outside the mask first in a faded grey, selected rows on top.
- * `mask` null means every row is selected.
- */
-export function drawLines(
-  ctx: CanvasRenderingContext2D,
-  table: Table,
-  layout: Layout,
-  scales: AxisScale[],
-  spread: Float32Array,
-  mask: Uint8Array | null,
-  theme: Theme,
-): void {
-  ctx.clearRect(0, 0, layout.width, layout.height);
-  const k = layout.slots.length;
-  if (k === 0 || table.n === 0) return;
-  const codes = layout.slots.map((s) => table.byName.get(s.name)!.codes);
-  const xs = layout.slots.map((s) => s.x);
-  const place = rowPlacement(scales, layout);
-  let selected = table.n;
-  if (mask) {
-    selected = 0;
-    for (let i = 0; i < table.n; i++) selected += mask[i];
-  }
-  const y = (a: number, i: number) => {
-    const c = codes[a][i];
-    return place[a].base[c] + spread[i] * place[a].height[c];
-  };
-  const pass = (want: number, colour: string, alpha: number) => {
-    ctx.strokeStyle = colour;
-    ctx.globalAlpha = alpha;
-    ctx.lineWidth = 1;
-    let inPath = 0;
-    ctx.beginPath();
-    for (let i = 0; i < table.n; i++) {
-      if ((mask ? mask[i] : 1) !== want) continue;
-      ctx.moveTo(xs[0], y(0, i));
-      for (let a = 1; a < k; a++) ctx.lineTo(xs[a], y(a, i));
-      if (++inPath === 2000) {
-        ctx.stroke();
-        ctx.beginPath();
-        inPath = 0;
-      }
-    }
-    ctx.stroke();
-  };
-  if (mask) pass(0, theme.faded, Math.min(0.25, autoAlpha(table.n) * 0.35));
-  pass(1, theme.line, autoAlpha(selected));
-  ctx.globalAlpha = 1;
 }
 
 function fitText(ctx: CanvasRenderingContext2D, text: string, max: number): string {
@@ -155,6 +107,42 @@ function header(ctx: CanvasRenderingContext2D, name: string, x: number, max: num
   ctx.fillText(fitText(ctx, name, max), x, 14);
 }
 
+/** Thin bars on the right of an axis: all rows (light) and selected rows (line colour). */
+function drawHistogram(
+  ctx: CanvasRenderingContext2D,
+  sc: AxisScale,
+  x: number,
+  layout: Layout,
+  all: Uint32Array,
+  selected: Uint32Array,
+  theme: Theme,
+) {
+  let peak = 0;
+  for (const v of all) peak = Math.max(peak, v);
+  if (!peak) return;
+  const width = 18;
+  const bins = all.length;
+  const h = (layout.bottom - layout.top) / bins;
+  ctx.save();
+  for (let b = 0; b < bins; b++) {
+    if (!all[b]) continue;
+    // bin b covers codes [b, b+1) x 1024: its pixel span on this (maybe flipped) axis
+    const y0 = sc.codePixel(Math.min(65534, b * 1024));
+    const y1 = sc.codePixel(Math.min(65534, (b + 1) * 1024));
+    const top = Math.min(y0, y1);
+    const hh = Math.max(1, Math.abs(y1 - y0) - 0.5 || h);
+    ctx.globalAlpha = 0.35;
+    ctx.fillStyle = theme.muted;
+    ctx.fillRect(x + 2, top, (width * all[b]) / peak, hh);
+    if (selected[b]) {
+      ctx.globalAlpha = 0.8;
+      ctx.fillStyle = theme.line;
+      ctx.fillRect(x + 2, top, (width * selected[b]) / peak, hh);
+    }
+  }
+  ctx.restore();
+}
+
 /** Okabe–Ito vermillion: negative associations between neighbours */
 const NEGATIVE = "#D55E00";
 
@@ -175,6 +163,7 @@ export function drawOverlay(
   sel: Sel,
   theme: Theme,
   readouts: { value: number }[] = [],
+  hist: { histSelected: Uint32Array[]; histAll: Uint32Array[] } | null = null,
 ): void {
   ctx.clearRect(0, 0, layout.width, layout.height);
   const k = layout.slots.length;
@@ -225,6 +214,7 @@ export function drawOverlay(
         ctx.stroke();
         label(ctx, ticks.labels[t], x - 6, y, theme);
       });
+      if (hist && hist.histAll[i]) drawHistogram(ctx, sc, x, layout, hist.histAll[i], hist.histSelected[i], theme);
       // ±inf pinned to the ends, with a marker
       const [neg, pos] = axis.inf;
       ctx.textAlign = "left";

@@ -2,8 +2,10 @@
 
 import { PairCache, rankCorrelation } from "./association";
 import { attachBrush } from "./brush";
-import { decodeTable, isCategorical, rowSpread, unpackMask, type RawTable, type Table } from "./data";
-import { drawLines, drawOverlay, readTheme, scalesFor, type Theme } from "./draw";
+import { colouring, hexToRgb, toCss, viridis, type Colouring } from "./colour";
+import { codeToValue, CODE_MISSING, decodeTable, isCategorical, rowSpread, unpackMask, type RawTable, type Table } from "./data";
+import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, type Theme } from "./draw";
+import { LinePainter, type Mode, type PaintResult } from "./paint";
 import { computeLayout, type Layout } from "./layout";
 import type { AxisScale } from "./scales";
 import { fromTrait, previewMask, selKey, toTrait, type Sel, type TraitRanges } from "./selection";
@@ -18,6 +20,8 @@ export interface Model {
 }
 
 const SYNC_MS = 60;
+/** Above this many rows, view_mode "auto" draws the density view. */
+export const DENSITY_ROWS = 200_000;
 
 export class View {
   readonly root: HTMLDivElement;
@@ -45,6 +49,16 @@ export class View {
   private dirtyOverlay = true;
   private cleanup: (() => void)[] = [];
   private pairs = new PairCache();
+  private painter: LinePainter;
+  private hist: PaintResult | null = null;
+  private progress: HTMLDivElement;
+  private tip: HTMLDivElement;
+  private legend: HTMLDivElement;
+  private modeButton: HTMLButtonElement;
+  private colours: Colouring | null = null;
+  private hover = -1;
+  private drawn = 0;
+  private waiters: ((ms: number) => void)[] = [];
 
   constructor(
     private model: Model,
@@ -53,9 +67,28 @@ export class View {
     this.root = document.createElement("div");
     this.root.className = "axw-root";
     this.root.style.cssText = "position:relative;width:100%;font:12px var(--jp-ui-font-family, system-ui, sans-serif);";
+    const bar = document.createElement("div");
+    bar.className = "axw-bar";
+    bar.style.cssText = "display:flex;align-items:center;gap:12px;padding:2px 4px 4px;color:var(--jp-ui-font-color1,#1f1f1f);";
     this.status = document.createElement("div");
     this.status.className = "axw-status";
-    this.status.style.cssText = "padding:2px 4px 4px;color:var(--jp-ui-font-color1,#1f1f1f);font-variant-numeric:tabular-nums;";
+    this.status.style.cssText = "flex:1;font-variant-numeric:tabular-nums;";
+    this.legend = document.createElement("div");
+    this.legend.className = "axw-legend";
+    this.legend.style.cssText = "display:flex;align-items:center;gap:8px;font-size:11px;flex-wrap:wrap;";
+    this.modeButton = document.createElement("button");
+    this.modeButton.className = "axw-mode";
+    this.modeButton.type = "button";
+    this.modeButton.title = "switch between one line per row and the density view";
+    this.modeButton.style.cssText =
+      "font:inherit;font-size:11px;padding:1px 8px;border:1px solid var(--jp-border-color1,#bbb);border-radius:10px;" +
+      "background:transparent;color:inherit;cursor:pointer;";
+    this.modeButton.addEventListener("click", () => {
+      this.model.set("view_mode", this.mode() === "density" ? "lines" : "density");
+      this.model.save_changes();
+      this.invalidate(true);
+    });
+    bar.append(this.status, this.legend, this.modeButton);
     this.stage = document.createElement("div");
     this.stage.className = "axw-stage";
     this.stage.style.cssText = "position:relative;width:100%;";
@@ -67,7 +100,27 @@ export class View {
       c.style.cssText = "position:absolute;left:0;top:0;touch-action:none;";
       this.stage.appendChild(c);
     }
-    this.root.append(this.status, this.stage);
+    this.progress = document.createElement("div");
+    this.progress.className = "axw-progress";
+    this.progress.setAttribute("role", "progressbar");
+    this.progress.style.cssText = "position:absolute;left:0;top:0;height:2px;width:0;background:#0072B2;display:none;";
+    this.tip = document.createElement("div");
+    this.tip.className = "axw-tip";
+    this.tip.style.cssText =
+      "position:absolute;display:none;pointer-events:none;white-space:pre;font-size:11px;line-height:1.35;" +
+      "padding:4px 6px;border-radius:4px;background:var(--jp-layout-color1,#fff);color:var(--jp-ui-font-color1,#222);" +
+      "border:1px solid var(--jp-border-color1,#ccc);box-shadow:0 1px 3px rgba(0,0,0,.2);font-variant-numeric:tabular-nums;";
+    this.stage.append(this.progress, this.tip);
+    this.root.append(bar, this.stage);
+    this.painter = new LinePainter(
+      this.linesCanvas,
+      (f) => {
+        this.progress.style.display = f === null ? "none" : "block";
+        if (f !== null) this.progress.style.width = `${Math.round(f * 100)}%`;
+      },
+      (r) => this.painted(r),
+    );
+    (this.root as any).__axw = { redraw: () => this.redrawTimed() };
     host.appendChild(this.root);
     this.theme = readTheme(host);
     this.loadTable();
@@ -100,6 +153,13 @@ export class View {
     this.listen("change:mask_bits", onAnswer);
     this.listen("change:count", onAnswer);
     this.listen("change:height", () => this.resize());
+    for (const name of ["color_by", "opacity", "view_mode", "curves", "bundle_by", "bundle_strength", "histograms"]) {
+      this.listen(`change:${name}`, () => {
+        this.colours = null;
+        this.invalidate(true);
+      });
+    }
+    this.listen("change:pinned", () => this.invalidate(false));
     this.listen("change:flipped", () => {
       this.layoutCache = null;
       this.invalidate(true);
@@ -112,6 +172,8 @@ export class View {
       flip: (axis) => this.flip(axis),
       reorder: (order, final) => this.reorder(order, final),
       preview: (r) => this.edit(r, false),
+      hover: (x, y) => this.hoverAt(x, y),
+      pin: () => this.pinHover(),
       commit: (r) => this.edit(r, true),
     });
     this.cleanup.push(detach);
@@ -128,6 +190,9 @@ export class View {
 
   private loadTable() {
     this.table = decodeTable(this.model.get("table") as RawTable);
+    this.colours = null;
+    this.hist = null;
+    this.hover = -1;
     this.pairs.clear();
     if (this.spread.length !== this.table.n) this.spread = rowSpread(this.table.n);
     this.readOrder();
@@ -270,24 +335,208 @@ export class View {
     this.invalidate(true);
   }
 
+  /** "lines" or "density": the user's choice, or by row count when "auto". */
+  mode(): Mode {
+    const m = this.model.get("view_mode") ?? "auto";
+    if (m === "lines" || m === "density") return m;
+    return this.table.n > DENSITY_ROWS ? "density" : "lines";
+  }
+
+  private colouringNow(): Colouring {
+    if (!this.colours) {
+      const by = this.model.get("color_by") as string;
+      this.colours = colouring(by ? this.table.byName.get(by) : undefined, hexToRgb(this.theme.line));
+      this.renderLegend();
+    }
+    return this.colours;
+  }
+
+  private renderLegend() {
+    const lg = this.colours!.legend;
+    this.legend.replaceChildren();
+    const by = this.model.get("color_by") as string;
+    if (lg.kind === "none") return;
+    const title = document.createElement("span");
+    title.textContent = `colour: ${by}`;
+    title.style.opacity = "0.75";
+    this.legend.append(title);
+    if (lg.kind === "categories") {
+      lg.labels.forEach((label, i) => {
+        const item = document.createElement("span");
+        item.style.cssText = "display:inline-flex;align-items:center;gap:3px;";
+        const sw = document.createElement("span");
+        sw.style.cssText = `display:inline-block;width:10px;height:10px;border-radius:2px;background:${toCss(lg.colours[i])};`;
+        const text = document.createElement("span");
+        text.textContent = label;
+        item.append(sw, text);
+        this.legend.append(item);
+      });
+    } else {
+      const sc = this.scales().find((x) => x.axis.name === by);
+      const lo = document.createElement("span");
+      const hi = document.createElement("span");
+      lo.textContent = sc ? sc.format(lg.axis.lo) : "";
+      hi.textContent = sc ? sc.format(lg.axis.hi) : "";
+      const ramp = document.createElement("span");
+      const stops = Array.from({ length: 9 }, (_, i) => toCss(viridis(i / 8))).join(",");
+      ramp.style.cssText = `display:inline-block;width:90px;height:10px;border-radius:2px;background:linear-gradient(to right,${stops});`;
+      this.legend.append(lo, ramp, hi);
+    }
+  }
+
   private paint() {
     const layout = this.layout();
     const dpr = window.devicePixelRatio || 1;
     const mask = this.preview ? this.preview.mask : this.kernelMask;
     const anyRange = Object.keys(this.sel).length > 0 || (this.kernelMask !== null && this.kernelCount < this.table.n);
     if (this.dirtyLines) {
-      const ctx = this.linesCanvas.getContext("2d")!;
-      ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-      drawLines(ctx, this.table, layout, this.scales(), this.spread, anyRange ? mask : null, this.theme);
       this.dirtyLines = false;
+      const shownMask = anyRange ? mask : null;
+      const selected = shownMask ? (this.preview ? this.preview.count : this.kernelCount) : this.table.n;
+      const userOpacity = Number(this.model.get("opacity") ?? 0);
+      const bundleBy = this.model.get("bundle_by") as string;
+      const bundleAxis = bundleBy ? layout.slots.findIndex((s) => s.name === bundleBy) : -1;
+      const mode = this.mode();
+      this.modeButton.textContent = mode === "density" ? "density ⇄ lines" : "lines ⇄ density";
+      this.root.dataset.mode = mode;
+      this.painter.paint({
+        table: this.table,
+        layout,
+        scales: this.scales(),
+        spread: this.spread,
+        mask: shownMask,
+        colouring: this.colouringNow(),
+        faded: hexToRgb(this.theme.faded),
+        opacity: userOpacity > 0 ? Math.min(1, userOpacity) : autoAlpha(selected),
+        mode,
+        curves: !!this.model.get("curves"),
+        bundle: bundleAxis >= 0 ? { axis: bundleAxis, strength: Math.min(1, Math.max(0, Number(this.model.get("bundle_strength") ?? 0.5))) } : null,
+        dpr,
+      });
     }
     if (this.dirtyOverlay) {
       const ctx = this.overlayCanvas.getContext("2d")!;
       ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-      drawOverlay(ctx, layout, this.scales(), this.sel, this.theme, this.readouts());
+      drawOverlay(ctx, layout, this.scales(), this.sel, this.theme, this.readouts(), this.model.get("histograms") === false ? null : this.hist);
+      this.drawHighlight(ctx);
       this.dirtyOverlay = false;
     }
     this.updateStatus(layout);
+  }
+
+  private painted(r: PaintResult) {
+    this.hist = r;
+    this.drawn++;
+    this.root.dataset.drawn = String(this.drawn);
+    this.root.dataset.drawMs = r.ms.toFixed(1);
+    this.invalidate(false);
+    for (const w of this.waiters.splice(0)) w(r.ms);
+  }
+
+  /** Redraw everything now and resolve with the milliseconds the lines layer took (a bench hook). */
+  redrawTimed(): Promise<number> {
+    return new Promise((resolve) => {
+      this.waiters.push(resolve);
+      this.invalidate(true);
+    });
+  }
+
+  // -- hover and pin ---------------------------------------------------------------------------------
+  /** The row whose line passes nearest to (x, y) between two axes, or -1 (straight-line geometry). */
+  private nearestRow(x: number, y: number): number {
+    const layout = this.layout();
+    const slots = layout.slots;
+    let a = -1;
+    for (let i = 0; i + 1 < slots.length; i++) if (x >= slots[i].x && x <= slots[i + 1].x) a = i;
+    if (a < 0 || y < layout.top - 4 || y > layout.laneY + 8) return -1;
+    const t = (x - slots[a].x) / (slots[a + 1].x - slots[a].x);
+    const place = this.placement();
+    const ca = this.table.byName.get(slots[a].name)!.codes;
+    const cb = this.table.byName.get(slots[a + 1].name)!.codes;
+    const pa = place[a];
+    const pb = place[a + 1];
+    const spread = this.spread;
+    let best = -1;
+    let bestD = 6;
+    for (let i = 0; i < this.table.n; i++) {
+      const ya = pa.base[ca[i]] + spread[i] * pa.height[ca[i]];
+      const yb = pb.base[cb[i]] + spread[i] * pb.height[cb[i]];
+      const d = Math.abs(ya + t * (yb - ya) - y);
+      if (d < bestD) {
+        bestD = d;
+        best = i;
+      }
+    }
+    return best;
+  }
+
+  private placementCache: { key: Layout; value: ReturnType<typeof rowPlacement> } | null = null;
+
+  private placement() {
+    const layout = this.layout();
+    if (this.placementCache?.key !== layout) this.placementCache = { key: layout, value: rowPlacement(this.scales(), layout) };
+    return this.placementCache.value;
+  }
+
+  private hoverAt(x: number, y: number) {
+    const row = this.nearestRow(x, y);
+    if (row === this.hover) return;
+    this.hover = row;
+    this.invalidate(false);
+  }
+
+  private pinHover() {
+    const row = this.hover;
+    const now = this.model.get("pinned") ?? -1;
+    this.model.set("pinned", row === now ? -1 : row);
+    this.model.save_changes();
+    this.invalidate(false);
+  }
+
+  /** The hovered and the pinned row: a strong polyline, and their values in a small box. */
+  private drawHighlight(ctx: CanvasRenderingContext2D) {
+    const pinned = this.model.get("pinned") ?? -1;
+    const rows = [pinned, this.hover].filter((r, i, all) => r >= 0 && r < this.table.n && all.indexOf(r) === i);
+    const layout = this.layout();
+    const place = this.placement();
+    for (const row of rows) {
+      ctx.save();
+      ctx.strokeStyle = row === pinned ? "#D55E00" : this.theme.fg;
+      ctx.lineWidth = 2;
+      ctx.globalAlpha = 0.9;
+      ctx.beginPath();
+      layout.slots.forEach((s, a) => {
+        const c = this.table.byName.get(s.name)!.codes[row];
+        const y = place[a].base[c] + this.spread[row] * place[a].height[c];
+        if (a === 0) ctx.moveTo(s.x, y);
+        else ctx.lineTo(s.x, y);
+      });
+      ctx.stroke();
+      ctx.restore();
+    }
+    const show = this.hover >= 0 ? this.hover : pinned;
+    if (show < 0 || show >= this.table.n) {
+      this.tip.style.display = "none";
+      return;
+    }
+    const lines = [`row ${show}${show === pinned ? " (pinned)" : ""}`];
+    for (const s of layout.slots) {
+      const axis = this.table.byName.get(s.name)!;
+      const c = axis.codes[show];
+      let text: string;
+      if (c === CODE_MISSING) text = "–";
+      else if (isCategorical(axis)) text = axis.labels && c < axis.labels.length ? axis.labels[c] : "(other)";
+      else {
+        const sc = this.scales().find((x) => x.axis === axis)!;
+        text = sc.format(codeToValue(axis, c));
+      }
+      lines.push(`${s.name}: ${text}`);
+    }
+    this.tip.textContent = lines.join("\n");
+    this.tip.style.display = "block";
+    const x = layout.slots[Math.min(1, layout.slots.length - 1)].x;
+    this.tip.style.left = `${Math.max(4, Math.min(layout.width - 180, x))}px`;
+    this.tip.style.top = `${layout.top}px`;
   }
 
   private updateStatus(layout: Layout) {
@@ -315,11 +564,14 @@ export class View {
       ),
       flipped: sc.filter((x) => x.flipped).map((x) => x.axis.name),
       readouts: this.readouts(),
+      hover: this.hover,
+      pinned: this.model.get("pinned") ?? -1,
       picked: Object.fromEntries(Object.entries(this.sel).map(([k, v]) => [k, { bands: v.bands, lane: v.lane }])),
     });
   }
 
   destroy() {
+    this.painter.cancel();
     cancelAnimationFrame(this.frame);
     window.clearTimeout(this.syncTimer);
     for (const f of this.cleanup) f();

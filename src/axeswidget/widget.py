@@ -79,17 +79,73 @@ class AxesWidget(anywidget.AnyWidget):
     answered_seq = t.Int(0).tag(sync=True)
     height = t.Int(380).tag(sync=True)
     views = t.List(t.Unicode()).tag(sync=True)
+    color_by = t.Unicode("").tag(sync=True)
+    opacity = t.Float(0.0).tag(sync=True)
+    view_mode = t.Enum(["auto", "lines", "density"], "auto").tag(sync=True)
+    curves = t.Bool(False).tag(sync=True)
+    bundle_by = t.Unicode("").tag(sync=True)
+    bundle_strength = t.Float(0.5).tag(sync=True)
+    histograms = t.Bool(True).tag(sync=True)
+    pinned = t.Int(-1).tag(sync=True)
 
-    def __init__(self, data, axes=None, *, ranges=None, height: int = 380, names=None, **kwargs):
-        super().__init__(height=height, **kwargs)
+    def __init__(
+        self, data, axes=None, *, ranges=None, height: int = 380, names=None, resume=None, **options
+    ):
+        super().__init__(height=height)
         self._axes_arg = axes
         self._callbacks: list[list] = []  # [callback, min_interval_while_dragging, last_call_time]
         self._was_dragging = False
         self._load(data, axes, names)
         self.order = list(self._columns)
         self._apply({})
+        if resume is not None:
+            self._take_over(resume)
+        for key, value in options.items():
+            if key not in _OPTIONS:
+                raise TypeError(
+                    f"AxesWidget got an unknown option {key!r}; options are: {', '.join(_OPTIONS)}"
+                )
+            setattr(self, key, value)
         if ranges:
             self.ranges = ranges
+
+    def _take_over(self, other) -> None:
+        """Adopt the view of another widget (order, ranges, flips, options) where it fits this data."""
+        if not isinstance(other, AxesWidget):
+            raise TypeError(f"resume= takes an AxesWidget, got {type(other).__name__}")
+        dropped = []
+        with self.hold_trait_notifications():
+            self.order = [a for a in other.order if a in self._columns] + [
+                a for a in self._columns if a not in other.order
+            ]
+            self.flipped = [a for a in other.flipped if a in self._columns]
+            for key in _OPTIONS:
+                try:
+                    setattr(self, key, getattr(other, key))
+                except t.TraitError:
+                    dropped.append(key)
+            kept = {}
+            for axis, items in other.ranges.items():
+                col = self._columns.get(axis)
+                clipped = (
+                    _clip_items(items, col)
+                    if col is not None and col.kind == other._columns[axis].kind
+                    else []
+                )
+                if clipped:
+                    kept[axis] = clipped
+                else:
+                    dropped.append(axis)
+            self.ranges = kept
+            saved = {}
+            for name, sel in other.saved.items():
+                try:
+                    saved[name] = normalise(sel, self._columns)
+                except SelectionError:
+                    dropped.append(f"saved selection {name!r}")
+            self.saved = saved
+        if dropped:
+            warnings.warn(f"axeswidget: could not take over: {', '.join(map(str, dropped))}", stacklevel=3)
 
     def _load(self, data, axes, names=None) -> None:
         frame = to_frame(data, names)
@@ -119,6 +175,47 @@ class AxesWidget(anywidget.AnyWidget):
             twice = sorted({a for a in order if order.count(a) > 1})
             raise t.TraitError("order names an axis twice: " + ", ".join(twice))
         return order
+
+    @t.validate("color_by")
+    def _check_color_by(self, proposal):
+        name = proposal["value"]
+        if name and name not in self._columns:
+            raise t.TraitError(
+                f"unknown axis {name!r} for color_by; the axes are: {', '.join(self._columns)}"
+            )
+        return name
+
+    @t.validate("bundle_by")
+    def _check_bundle_by(self, proposal):
+        name = proposal["value"]
+        if name:
+            col = self._columns.get(name)
+            if col is None:
+                raise t.TraitError(
+                    f"unknown axis {name!r} for bundle_by; the axes are: {', '.join(self._columns)}"
+                )
+            if col.kind not in ("category", "boolean"):
+                raise t.TraitError(f"bundle_by needs a category axis; {name!r} is a {col.kind} axis")
+        return name
+
+    @t.validate("opacity", "bundle_strength")
+    def _check_unit(self, proposal):
+        value = float(proposal["value"])
+        if not 0.0 <= value <= 1.0:
+            raise t.TraitError(f"{proposal['trait'].name} must be between 0 and 1, got {value}")
+        return value
+
+    @t.validate("pinned")
+    def _check_pinned(self, proposal):
+        row = int(proposal["value"])
+        if not -1 <= row < len(self._frame):
+            raise t.TraitError(f"pinned must be a row position in 0..{len(self._frame) - 1} or -1, got {row}")
+        return row
+
+    @property
+    def pinned_index(self):
+        """Index label of the row pinned on the page (click a line), or None."""
+        return None if self.pinned < 0 else self._frame.index[self.pinned]
 
     @t.validate("flipped")
     def _check_flipped(self, proposal):
@@ -417,6 +514,20 @@ class AxesWidget(anywidget.AnyWidget):
 
     def __repr__(self) -> str:
         return f"AxesWidget({len(self._columns)} axes, {self.count} of {len(self._frame)} rows selected)"
+
+
+#: view options that can be given as keyword arguments and are carried over by ``resume=``
+_OPTIONS = (
+    "color_by",
+    "opacity",
+    "view_mode",
+    "curves",
+    "bundle_by",
+    "bundle_strength",
+    "histograms",
+    "log_axes",
+    "height",
+)
 
 
 def _clip_items(items: list, col: Column) -> list:

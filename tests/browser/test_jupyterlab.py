@@ -99,7 +99,7 @@ def test_drag_in_jupyterlab_gives_exact_kernel_mask(browser, lab):
                 const s = c.width / c.getBoundingClientRect().width;
                 const d = c.getContext('2d').getImageData(Math.round(x * s), Math.round(y * s), 1, 1);
                 return Array.from(d.data); }""",
-            [band["x"] + 5, (band["yTop"] + band["yBottom"]) / 2],
+            [band["x"] - 3, band["yTop"] + 0.3 * (band["yBottom"] - band["yTop"])],
         )
         assert rgba[3] > 0
         assert not dialogs

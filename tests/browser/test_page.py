@@ -40,13 +40,13 @@ def test_range_set_in_python_is_drawn(show, fleet):
     w = aw.AxesWidget(fleet, axes=["flow_m3h", "head_m", "power_kw"])
     s = show(w)
     x = s.x_of("head_m")
-    y_mid = s.y_of("head_m", 30)
-    before = s.pixel(x + 5, y_mid)
+    y_mid = s.y_of("head_m", 32)
+    before = s.pixel(x - 3, y_mid)
     w.ranges = {"head_m": [[25, 35]]}
     s.pull_from_kernel()
     bands = s.layout()["bands"]
     assert [b["name"] for b in bands] == ["head_m"]
-    after = s.pixel(x + 5, y_mid)
+    after = s.pixel(x - 3, y_mid)
     assert before[3] == 0 and after[3] > 0  # the band's translucent fill is painted beside the axis
     assert int(s.root().get_attribute("data-count")) == int(fleet["head_m"].between(25, 35).sum())
 

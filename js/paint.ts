@@ -1,0 +1,372 @@
+// The lines layer: rows drawn into accumulation buffers, a little at a time, so the page stays responsive.
+//
+// Two buffers: rows outside the selection (one faded grey) and selected rows (coloured). Each is
+// tone-mapped (alpha = 1 - exp(-gain * weight)) and the selected layer is composited over the faded
+// one before a single putImageData. Work is cut into chunks of about CHUNK_MS; between chunks the page
+// handles input, and about every SHOW_MS the picture so far is shown.
+//
+// Two modes:
+//   lines   — one polyline per row (straight or curved; optionally bundled by a category column);
+//   density — per pair of neighbouring axes, rows are counted in BINS x BINS cells (per colour group
+//             and layer), and each non-empty cell is drawn once with its count as weight
+//             (frequency-based parallel coordinates, Artero et al. 2004).
+
+import { type Colouring, type RGB } from "./colour";
+import { CODE_MISSING, isCategorical, type Table } from "./data";
+import { rowPlacement } from "./draw";
+import type { Layout } from "./layout";
+import { Accumulator, gainForOpacity } from "./raster";
+import type { AxisScale } from "./scales";
+
+export type Mode = "lines" | "density";
+
+export interface PaintJob {
+  table: Table;
+  layout: Layout;
+  scales: AxisScale[];
+  spread: Float32Array;
+  /** null: nothing is selected away, every row is drawn in colour */
+  mask: Uint8Array | null;
+  colouring: Colouring;
+  faded: RGB;
+  /** opacity of one selected line (faded lines get a fraction of it) */
+  opacity: number;
+  mode: Mode;
+  curves: boolean;
+  /** bundle rows of each category of this axis toward the category's centre between axes */
+  bundle: { axis: number; strength: number } | null;
+  dpr: number;
+}
+
+export interface PaintResult {
+  ms: number;
+  /** per axis in the layout: selected-row counts in HIST_BINS bins along the axis (numeric axes) */
+  histSelected: Uint32Array[];
+  histAll: Uint32Array[];
+}
+
+export const BINS = 128;
+export const HIST_BINS = 64;
+const CHUNK_MS = 20;
+const SHOW_MS = 180;
+
+const yieldToPage = (() => {
+  const channel = typeof MessageChannel !== "undefined" ? new MessageChannel() : null;
+  const queue: (() => void)[] = [];
+  if (channel) channel.port1.onmessage = () => queue.shift()?.();
+  return () =>
+    new Promise<void>((resolve) => {
+      if (channel) {
+        queue.push(resolve);
+        channel.port2.postMessage(0);
+      } else setTimeout(resolve, 0);
+    });
+})();
+
+export class LinePainter {
+  private token = 0;
+  private sel: Accumulator | null = null;
+  private fad: Accumulator | null = null;
+  private image: ImageData | null = null;
+
+  constructor(
+    private canvas: HTMLCanvasElement,
+    private onProgress: (fraction: number | null) => void,
+    private onDone: (result: PaintResult) => void,
+  ) {}
+
+  /** Start painting a job; a job still running is abandoned. */
+  paint(job: PaintJob): void {
+    const token = ++this.token;
+    this.run(job, token).catch((err) => {
+      console.error("axeswidget: drawing failed", err);
+      this.onProgress(null);
+    });
+  }
+
+  cancel() {
+    this.token++;
+  }
+
+  private buffers(w: number, h: number) {
+    if (!this.sel || this.sel.width !== w || this.sel.height !== h) {
+      this.sel = new Accumulator(w, h);
+      this.fad = new Accumulator(w, h);
+      this.image = new ImageData(w, h);
+    } else {
+      this.sel.clear();
+      this.fad!.clear();
+    }
+    return { sel: this.sel, fad: this.fad!, image: this.image! };
+  }
+
+  private async run(job: PaintJob, token: number) {
+    const t0 = performance.now();
+    const W = Math.max(1, Math.round(job.layout.width * job.dpr));
+    const H = Math.max(1, Math.round(job.layout.height * job.dpr));
+    const { sel, fad, image } = this.buffers(W, H);
+    const ctx = this.canvas.getContext("2d")!;
+    const n = job.table.n;
+    const k = job.layout.slots.length;
+    const codes = job.layout.slots.map((s) => job.table.byName.get(s.name)!.codes);
+    const histSelected = codes.map(() => new Uint32Array(HIST_BINS));
+    const histAll = codes.map(() => new Uint32Array(HIST_BINS));
+    const gain = gainForOpacity(job.opacity);
+    const fadedGain = gainForOpacity(Math.min(0.25, job.opacity * 0.35));
+    let shown = t0;
+    let chunk = 2048;
+
+    const show = () => {
+      compose(fad, sel, image, fadedGain, gain);
+      ctx.putImageData(image, 0, 0);
+    };
+    /** Run body over all rows in chunks; false when the job was abandoned. */
+    const chunked = async (body: (i0: number, i1: number) => void, share: [number, number]) => {
+      for (let i0 = 0; i0 < n; ) {
+        const c0 = performance.now();
+        const i1 = Math.min(n, i0 + chunk);
+        body(i0, i1);
+        i0 = i1;
+        const took = performance.now() - c0;
+        chunk = Math.max(256, Math.min(1 << 18, Math.round((chunk * CHUNK_MS) / Math.max(1, took))));
+        if (i0 < n) {
+          if (performance.now() - t0 > 300) this.onProgress(share[0] + (share[1] - share[0]) * (i0 / n));
+          if (performance.now() - shown > SHOW_MS) {
+            show();
+            shown = performance.now();
+          }
+          await yieldToPage();
+          if (token !== this.token) return false;
+        }
+      }
+      return true;
+    };
+
+    if (k >= 2 && n > 0) {
+      const place = rowPlacement(job.scales, job.layout);
+      const xs = new Float32Array(job.layout.slots.map((s) => s.x * job.dpr));
+      const rowY = (a: number, i: number) => {
+        const c = codes[a][i];
+        return (place[a].base[c] + job.spread[i] * place[a].height[c]) * job.dpr;
+      };
+      const ok =
+        job.mode === "density"
+          ? await this.density(job, codes, rowY, xs, sel, fad, histSelected, histAll, chunked)
+          : await this.lines(job, codes, rowY, xs, sel, fad, histSelected, histAll, chunked);
+      if (!ok || token !== this.token) return;
+    }
+    show();
+    this.onProgress(null);
+    this.onDone({ ms: performance.now() - t0, histSelected, histAll });
+  }
+
+  private async lines(
+    job: PaintJob,
+    codes: Uint16Array[],
+    rowY: (a: number, i: number) => number,
+    xs: Float32Array,
+    sel: Accumulator,
+    fad: Accumulator,
+    histSelected: Uint32Array[],
+    histAll: Uint32Array[],
+    chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>,
+  ): Promise<boolean> {
+    const k = xs.length;
+    const { mask, colouring, bundle } = job;
+    const group = colouring.group;
+    const palette = colouring.palette;
+    // bundling: a mid point per gap, pulled toward the mean mid point of the row's category
+    let centres: Float64Array | null = null;
+    if (bundle) {
+      const bcodes = codes[bundle.axis];
+      const groups = 65536;
+      const sums = new Float64Array((k - 1) * 64);
+      const counts = new Float64Array(64);
+      const ok = await chunked((i0, i1) => {
+        for (let i = i0; i < i1; i++) {
+          const g = Math.min(63, bcodes[i] === CODE_MISSING ? 63 : bcodes[i]);
+          counts[g]++;
+          for (let a = 0; a + 1 < k; a++) sums[a * 64 + g] += (rowY(a, i) + rowY(a + 1, i)) / 2;
+        }
+      }, [0, 0.2]);
+      if (!ok) return false;
+      centres = sums;
+      for (let a = 0; a + 1 < k; a++) for (let g = 0; g < 64; g++) if (counts[g]) centres[a * 64 + g] /= counts[g];
+      void groups;
+    }
+    const axesOut = bundle ? 2 * k - 1 : k;
+    const xsOut = new Float32Array(axesOut);
+    for (let a = 0; a < k; a++) {
+      xsOut[bundle ? 2 * a : a] = xs[a];
+      if (bundle && a + 1 < k) xsOut[2 * a + 1] = (xs[a] + xs[a + 1]) / 2;
+    }
+    const s = bundle ? bundle.strength : 0;
+    let ys = new Float32Array(0);
+    let colours = new Float32Array(0);
+    let filterSel = new Uint8Array(0);
+    let filterFad = new Uint8Array(0);
+    const single: [number, number, number] = palette[0];
+    return chunked((i0, i1) => {
+      const rows = i1 - i0;
+      if (ys.length < rows * axesOut) {
+        ys = new Float32Array(rows * axesOut);
+        colours = new Float32Array(rows * 3);
+        filterSel = new Uint8Array(rows);
+        filterFad = new Uint8Array(rows);
+      }
+      let anyFaded = false;
+      for (let r = 0; r < rows; r++) {
+        const i = i0 + r;
+        const on = mask ? mask[i] : 1;
+        filterSel[r] = on;
+        filterFad[r] = on ? 0 : 1;
+        anyFaded ||= !on;
+        const base = r * axesOut;
+        for (let a = 0; a < k; a++) {
+          const y = rowY(a, i);
+          ys[base + (bundle ? 2 * a : a)] = y;
+          const c = codes[a][i];
+          const hb = c === CODE_MISSING ? -1 : c >> 10;
+          if (hb >= 0) {
+            histAll[a][hb]++;
+            if (on) histSelected[a][hb]++;
+          }
+        }
+        if (bundle && centres) {
+          const g = Math.min(63, codes[bundle.axis][i] === CODE_MISSING ? 63 : codes[bundle.axis][i]);
+          for (let a = 0; a + 1 < k; a++) {
+            const mid = (ys[base + 2 * a] + ys[base + 2 * a + 2]) / 2;
+            ys[base + 2 * a + 1] = (1 - s) * mid + s * centres[a * 64 + g];
+          }
+        }
+        if (group) {
+          const p = palette[group[i]];
+          colours[3 * r] = p[0];
+          colours[3 * r + 1] = p[1];
+          colours[3 * r + 2] = p[2];
+        }
+      }
+      const curve = job.curves || !!bundle;
+      if (anyFaded) fad.polylines(xsOut, ys, rows, axesOut, job.faded, 1, filterFad, curve);
+      sel.polylines(xsOut, ys, rows, axesOut, group ? colours : single, 1, filterSel, curve);
+    }, [bundle ? 0.2 : 0, 1]);
+  }
+
+  private async density(
+    job: PaintJob,
+    codes: Uint16Array[],
+    _rowY: (a: number, i: number) => number,
+    xs: Float32Array,
+    sel: Accumulator,
+    fad: Accumulator,
+    histSelected: Uint32Array[],
+    histAll: Uint32Array[],
+    chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>,
+  ): Promise<boolean> {
+    const k = xs.length;
+    const { mask, colouring } = job;
+    // colour groups: at most 9 in density mode (categories keep theirs; continuous values 8 levels)
+    const src = colouring.group;
+    const palette = colouring.palette;
+    const G = src ? Math.min(9, palette.length) : 1;
+    const gOf = (i: number) => {
+      if (!src) return 0;
+      const g = src[i];
+      if (palette.length <= 9) return g;
+      return g >= palette.length - 1 ? 8 : Math.min(7, Math.floor((g * 8) / (palette.length - 1)));
+    };
+    const groupColour = (g: number): RGB => {
+      if (!src || palette.length <= 9) return palette[g];
+      if (g === 8) return palette[palette.length - 1];
+      return palette[Math.min(palette.length - 2, Math.round(((g + 0.5) * (palette.length - 1)) / 8))];
+    };
+    const B = BINS + 1; // last bin: missing
+    const binOf = (a: number, i: number) => {
+      const c = codes[a][i];
+      if (c === CODE_MISSING) return BINS;
+      return isCategorical(job.scales[a].axis) ? Math.min(BINS - 1, c) : c >> 9;
+    };
+    const cells = B * B;
+    const selCounts = Array.from({ length: k - 1 }, () => new Uint32Array(G * cells));
+    const fadCounts = Array.from({ length: k - 1 }, () => new Uint32Array(cells));
+    const bins = new Int32Array(k);
+    const ok = await chunked((i0, i1) => {
+      for (let i = i0; i < i1; i++) {
+        const on = mask ? mask[i] : 1;
+        const g = gOf(i);
+        for (let a = 0; a < k; a++) {
+          const b = binOf(a, i);
+          bins[a] = b;
+          const c = codes[a][i];
+          if (c !== CODE_MISSING) {
+            const hb = c >> 10;
+            histAll[a][hb]++;
+            if (on) histSelected[a][hb]++;
+          }
+        }
+        if (on) for (let a = 0; a + 1 < k; a++) selCounts[a][g * cells + bins[a] * B + bins[a + 1]]++;
+        else for (let a = 0; a + 1 < k; a++) fadCounts[a][bins[a] * B + bins[a + 1]]++;
+      }
+    }, [0, 0.7]);
+    if (!ok) return false;
+    // y of a bin's centre per axis
+    const binY = job.scales.map((sc, a) => {
+      const ys = new Float32Array(B);
+      for (let b = 0; b < BINS; b++) {
+        if (isCategorical(sc.axis)) {
+          const band = sc.bands[b];
+          ys[b] = band ? ((band.y0 + band.y1) / 2) * job.dpr : NaN;
+        } else ys[b] = sc.codePixel((b + 0.5) * 512) * job.dpr;
+      }
+      ys[BINS] = job.layout.laneY * job.dpr;
+      void a;
+      return ys;
+    });
+    const draw = (acc: Accumulator, counts: Uint32Array, a: number, colour: RGB, offset: number) => {
+      const x0 = xs[a];
+      const x1 = xs[a + 1];
+      for (let cell = 0; cell < cells; cell++) {
+        const w = counts[offset + cell];
+        if (!w) continue;
+        const y0 = binY[a][(cell / B) | 0];
+        const y1 = binY[a + 1][cell % B];
+        if (job.curves) acc.curveSegment(x0, y0, x1, y1, colour[0], colour[1], colour[2], w);
+        else acc.segment(x0, y0, x1, y1, colour[0], colour[1], colour[2], w);
+      }
+    };
+    for (let a = 0; a + 1 < k; a++) {
+      draw(fad, fadCounts[a], a, job.faded, 0);
+      for (let g = 0; g < G; g++) draw(sel, selCounts[a], a, groupColour(g), g * cells);
+      this.onProgress(0.7 + (0.3 * (a + 1)) / (k - 1));
+      await yieldToPage();
+    }
+    return true;
+  }
+}
+
+/** Selected layer over faded layer (straight alpha), into `image`. */
+export function compose(fad: Accumulator, sel: Accumulator, image: ImageData, fadedGain: number, gain: number) {
+  const out = image.data;
+  const tmp = compose.buffer.length === out.length ? compose.buffer : (compose.buffer = new Uint8ClampedArray(out.length));
+  fad.resolve(out, fadedGain);
+  sel.resolve(tmp, gain);
+  for (let p = 0; p < out.length; p += 4) {
+    const as = tmp[p + 3];
+    if (!as) continue;
+    if (as === 255 || !out[p + 3]) {
+      out[p] = tmp[p];
+      out[p + 1] = tmp[p + 1];
+      out[p + 2] = tmp[p + 2];
+      out[p + 3] = as;
+      continue;
+    }
+    const s = as / 255;
+    const f = (out[p + 3] / 255) * (1 - s);
+    const a = s + f;
+    out[p] = (tmp[p] * s + out[p] * f) / a;
+    out[p + 1] = (tmp[p + 1] * s + out[p + 1] * f) / a;
+    out[p + 2] = (tmp[p + 2] * s + out[p + 2] * f) / a;
+    out[p + 3] = a * 255;
+  }
+}
+compose.buffer = new Uint8ClampedArray(0);
