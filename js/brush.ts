@@ -34,6 +34,8 @@ export interface BrushHost {
   hover(x: number, y: number): void;
   /** a click away from the axes: pin or unpin the hovered line */
   pin(): void;
+  /** page position (relative to the canvas) to the logical layout's coordinates */
+  toLogical(x: number, y: number): { x: number; y: number };
 }
 
 export type Hit =
@@ -117,7 +119,7 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
 
   const local = (e: PointerEvent | MouseEvent) => {
     const r = canvas.getBoundingClientRect();
-    return { x: e.clientX - r.left, y: e.clientY - r.top };
+    return host.toLogical(e.clientX - r.left, e.clientY - r.top);
   };
 
   /** The selection the drag in progress describes, with the pointer at y. */

@@ -74,6 +74,46 @@ function fitText(ctx: CanvasRenderingContext2D, text: string, max: number): stri
   return s + "…";
 }
 
+type Side = "before" | "after";
+
+/**
+ * Align text that sits beside an axis: "before" = left of a vertical axis / above a horizontal one,
+ * "after" = right of it / below it. Positions are logical; see Layout.horizontal.
+ */
+function beside(ctx: CanvasRenderingContext2D, layout: Layout, side: Side) {
+  if (layout.horizontal) {
+    ctx.textAlign = "center";
+    ctx.textBaseline = side === "before" ? "bottom" : "top";
+  } else {
+    ctx.textAlign = side === "before" ? "right" : "left";
+    ctx.textBaseline = "middle";
+  }
+}
+
+/**
+ * In horizontal orientation the overlay context draws shapes transposed; text must stay upright, so
+ * fillText/strokeText are redirected to draw at the transposed point without the transform.
+ * Returns a function that undoes the redirection.
+ */
+export function uprightText(ctx: CanvasRenderingContext2D, dpr: number): () => void {
+  const fill = ctx.fillText;
+  const stroke = ctx.strokeText;
+  const redirect = (draw: typeof fill) =>
+    function (this: CanvasRenderingContext2D, text: string, x: number, y: number, maxWidth?: number) {
+      ctx.save();
+      ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+      if (maxWidth === undefined) draw.call(ctx, text, y, x);
+      else draw.call(ctx, text, y, x, maxWidth);
+      ctx.restore();
+    };
+  ctx.fillText = redirect(fill);
+  ctx.strokeText = redirect(stroke);
+  return () => {
+    delete (ctx as any).fillText;
+    delete (ctx as any).strokeText;
+  };
+}
+
 /** Text with a halo in the background colour, so it stays legible over lines. */
 function label(ctx: CanvasRenderingContext2D, text: string, x: number, y: number, theme: Theme) {
   ctx.save();
@@ -87,7 +127,18 @@ function label(ctx: CanvasRenderingContext2D, text: string, x: number, y: number
 }
 
 /** Axis name in at most two lines (split at the "_" or space nearest the middle), then truncated. */
-function header(ctx: CanvasRenderingContext2D, name: string, x: number, max: number, theme: Theme) {
+function header(ctx: CanvasRenderingContext2D, name: string, x: number, max: number, theme: Theme, layout: Layout) {
+  if (layout.horizontal) {
+    // one line, left of the axis's start
+    ctx.textAlign = "left";
+    ctx.textBaseline = "bottom";
+    for (const size of [12, 11, 10]) {
+      ctx.font = `600 ${size}px ${theme.font}`;
+      if (ctx.measureText(name).width <= layout.top - 14 || size === 10) break;
+    }
+    ctx.fillText(fitText(ctx, name, layout.top - 14), x + 1, 6);
+    return;
+  }
   for (const size of [12, 11, 10]) {
     ctx.font = `600 ${size}px ${theme.font}`;
     if (ctx.measureText(name).width <= max) {
@@ -165,7 +216,6 @@ export function drawOverlay(
   readouts: { value: number }[] = [],
   hist: { histSelected: Uint32Array[]; histAll: Uint32Array[] } | null = null,
 ): void {
-  ctx.clearRect(0, 0, layout.width, layout.height);
   const k = layout.slots.length;
   const gap = k > 1 ? layout.slots[1].x - layout.slots[0].x : layout.width;
   ctx.textBaseline = "middle";
@@ -180,7 +230,7 @@ export function drawOverlay(
     ctx.font = `10px ${theme.font}`;
     if (sc.categorical) {
       // bands: a bar per category on the axis, its label on the left
-      ctx.textAlign = "right";
+      beside(ctx, layout, "before");
       sc.bands.forEach((b, code) => {
         const picked = s?.bands.includes(code);
         ctx.fillStyle = picked ? theme.band : theme.fg;
@@ -194,7 +244,7 @@ export function drawOverlay(
         if (b.y1 - b.y0 >= 9 || sc.bands.length <= 12) {
           ctx.fillStyle = picked ? theme.fg : theme.muted;
           ctx.font = `${picked ? "600 " : ""}10px ${theme.font}`;
-          const room = i === 0 ? x - 10 : Math.max(30, gap * 0.55);
+          const room = layout.horizontal ? b.y1 - b.y0 + 40 : i === 0 ? x - 10 : Math.max(30, gap * 0.55);
           label(ctx, fitText(ctx, sc.bandLabel(code), room), x - 7, (b.y0 + b.y1) / 2, theme);
         }
       });
@@ -204,7 +254,7 @@ export function drawOverlay(
       ctx.moveTo(x, layout.top);
       ctx.lineTo(x, layout.bottom);
       ctx.stroke();
-      ctx.textAlign = "right";
+      beside(ctx, layout, "before");
       const ticks = sc.ticks();
       ticks.values.forEach((v, t) => {
         const y = Math.round(sc.toPixel(v)) + 0.5;
@@ -217,7 +267,7 @@ export function drawOverlay(
       if (hist && hist.histAll[i]) drawHistogram(ctx, sc, x, layout, hist.histAll[i], hist.histSelected[i], theme);
       // ±inf pinned to the ends, with a marker
       const [neg, pos] = axis.inf;
-      ctx.textAlign = "left";
+      beside(ctx, layout, "after");
       if (pos) label(ctx, `+∞ ${pos}`, x + 6, layout.top - 6, theme);
       if (neg) label(ctx, `−∞ ${neg}`, x + 6, layout.bottom + 8, theme);
       ctx.globalAlpha = 1;
@@ -236,8 +286,8 @@ export function drawOverlay(
         const loText = lo === -Infinity ? "open" : sc.format(lo);
         // end values on the right of the axis, or on the left where the chart ends
         const wide = Math.max(ctx.measureText(hiText).width, ctx.measureText(loText).width);
-        const right = x + 11 + wide <= layout.width;
-        ctx.textAlign = right ? "left" : "right";
+        const right = layout.horizontal || x + 11 + wide <= layout.width;
+        beside(ctx, layout, right ? "after" : "before");
         const tx = right ? x + 11 : x - 11;
         label(ctx, sc.flipped ? loText : hiText, tx, yTop - 1, theme);
         label(ctx, sc.flipped ? hiText : loText, tx, yBot + 1, theme);
@@ -246,11 +296,17 @@ export function drawOverlay(
     // header: name, and a small marker of the kind
     ctx.globalAlpha = 1;
     ctx.textAlign = "center";
+    ctx.textBaseline = "middle";
     ctx.fillStyle = theme.fg;
-    header(ctx, slot.name, x, Math.max(30, gap - 6), theme);
+    header(ctx, slot.name, x, Math.max(30, gap - 6), theme, layout);
     ctx.font = `9px ${theme.font}`;
     ctx.fillStyle = theme.muted;
-    ctx.fillText((KIND_MARK[axis.kind] ?? axis.kind) + (sc.flipped ? " ↓" : ""), x, 33);
+    const mark = (KIND_MARK[axis.kind] ?? axis.kind) + (sc.flipped !== layout.horizontal ? " ↓" : "");
+    if (layout.horizontal) {
+      ctx.textAlign = "left";
+      ctx.textBaseline = "top";
+      ctx.fillText(mark, x + 2, 6);
+    } else ctx.fillText(mark, x, 33);
     // missing-values lane: a box below the axis, filled when picked
     const lanePicked = !!s?.lane;
     ctx.globalAlpha = axis.missing || lanePicked ? 0.95 : 0.3;
@@ -263,7 +319,7 @@ export function drawOverlay(
     ctx.strokeRect(x - 7, layout.laneY - layout.laneHalf, 14, 2 * layout.laneHalf);
     ctx.setLineDash([]);
     if (axis.missing) {
-      ctx.textAlign = "left";
+      beside(ctx, layout, "after");
       ctx.fillStyle = theme.muted;
       ctx.font = `10px ${theme.font}`;
       ctx.fillText(`∅ ${formatValue(axis.missing, 1)}`, x + 10, layout.laneY);
@@ -272,11 +328,12 @@ export function drawOverlay(
   });
   // rank association between neighbours, midway between their headers
   ctx.font = `10px ${theme.font}`;
-  ctx.textAlign = "center";
+  ctx.textAlign = layout.horizontal ? "left" : "center";
+  ctx.textBaseline = "middle";
   readouts.forEach((r, i) => {
     if (i + 1 >= layout.slots.length || !isFinite(r.value)) return;
     const x = (layout.slots[i].x + layout.slots[i + 1].x) / 2;
     ctx.fillStyle = r.value >= 0 ? theme.line : NEGATIVE;
-    ctx.fillText(`ρ ${r.value >= 0 ? "+" : "−"}${Math.abs(r.value).toFixed(2)}`, x, 33);
+    ctx.fillText(`ρ ${r.value >= 0 ? "+" : "−"}${Math.abs(r.value).toFixed(2)}`, x, layout.horizontal ? 60 : 33);
   });
 }

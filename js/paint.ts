@@ -36,6 +36,8 @@ export interface PaintJob {
   /** bundle rows of each category of this axis toward the category's centre between axes */
   bundle: { axis: number; strength: number } | null;
   dpr: number;
+  /** show the picture transposed (horizontal orientation: logical x is the page's y) */
+  transpose: boolean;
 }
 
 export interface PaintResult {
@@ -68,6 +70,7 @@ export class LinePainter {
   private sel: Accumulator | null = null;
   private fad: Accumulator | null = null;
   private image: ImageData | null = null;
+  private turned: ImageData | null = null;
 
   constructor(
     private canvas: HTMLCanvasElement,
@@ -118,7 +121,13 @@ export class LinePainter {
 
     const show = () => {
       compose(fad, sel, image, fadedGain, gain);
-      ctx.putImageData(image, 0, 0);
+      if (!job.transpose) {
+        ctx.putImageData(image, 0, 0);
+        return;
+      }
+      if (!this.turned || this.turned.width !== H || this.turned.height !== W) this.turned = new ImageData(H, W);
+      transpose(image, this.turned);
+      ctx.putImageData(this.turned, 0, 0);
     };
     /** Run body over all rows in chunks; false when the job was abandoned. */
     const chunked = async (body: (i0: number, i1: number) => void, share: [number, number]) => {
@@ -341,6 +350,18 @@ export class LinePainter {
       await yieldToPage();
     }
     return true;
+  }
+}
+
+/** Swap rows and columns of an image (src W x H into dst H x W). */
+export function transpose(src: ImageData, dst: ImageData) {
+  const a = new Uint32Array(src.data.buffer);
+  const b = new Uint32Array(dst.data.buffer);
+  const W = src.width;
+  const H = src.height;
+  for (let y = 0; y < H; y++) {
+    const row = y * W;
+    for (let x = 0; x < W; x++) b[x * H + y] = a[row + x];
   }
 }
 

@@ -4,7 +4,7 @@ import { PairCache, rankCorrelation } from "./association";
 import { attachBrush } from "./brush";
 import { colouring, hexToRgb, toCss, viridis, type Colouring } from "./colour";
 import { codeToValue, CODE_MISSING, decodeTable, isCategorical, rowSpread, unpackMask, type RawTable, type Table } from "./data";
-import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, type Theme } from "./draw";
+import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, uprightText, type Theme } from "./draw";
 import { LinePainter, type Mode, type PaintResult } from "./paint";
 import { computeLayout, type Layout } from "./layout";
 import type { AxisScale } from "./scales";
@@ -153,6 +153,7 @@ export class View {
     this.listen("change:mask_bits", onAnswer);
     this.listen("change:count", onAnswer);
     this.listen("change:height", () => this.resize());
+    this.listen("change:orientation", () => this.resize());
     for (const name of ["color_by", "opacity", "view_mode", "curves", "bundle_by", "bundle_strength", "histograms"]) {
       this.listen(`change:${name}`, () => {
         this.colours = null;
@@ -173,6 +174,7 @@ export class View {
       reorder: (order, final) => this.reorder(order, final),
       preview: (r) => this.edit(r, false),
       hover: (x, y) => this.hoverAt(x, y),
+      toLogical: (x, y) => (this.horizontal ? { x: y, y: x } : { x, y }),
       pin: () => this.pinHover(),
       commit: (r) => this.edit(r, true),
     });
@@ -304,14 +306,30 @@ export class View {
     });
   }
 
+  get horizontal(): boolean {
+    return this.model.get("orientation") === "horizontal";
+  }
+
+  /** Size of the drawing area on the page, in CSS pixels. */
+  private physicalSize(): { w: number; h: number } {
+    const w = Math.max(200, this.root.clientWidth || 800);
+    const h = Math.max(160, this.model.get("height") ?? 380);
+    return this.horizontal ? { w, h: Math.max(h, 44 * this.order.length + 70) } : { w, h };
+  }
+
+  /** The layout in logical coordinates (axes vertical); see Layout.horizontal. */
   layout(): Layout {
     if (!this.layoutCache) {
-      const w = Math.max(200, this.root.clientWidth || 800);
-      const h = Math.max(160, this.model.get("height") ?? 380);
+      const { w, h } = this.physicalSize();
       const first = this.table.byName.get(this.order[0]);
-      this.layoutCache = computeLayout(w, h, this.order, !!first && isCategorical(first));
+      const horizontal = this.horizontal;
+      this.layoutCache = horizontal
+        ? computeLayout(h, w, this.order, false, true)
+        : computeLayout(w, h, this.order, !!first && isCategorical(first));
       const flipped = new Set((this.model.get("flipped") as string[]) ?? []);
-      this.scaleCache = scalesFor(this.table, this.layoutCache, flipped);
+      // across the page values grow to the right: logically that is a flipped axis
+      const shown = new Set(this.order.filter((a) => flipped.has(a) !== horizontal));
+      this.scaleCache = scalesFor(this.table, this.layoutCache, shown);
     }
     return this.layoutCache;
   }
@@ -323,7 +341,8 @@ export class View {
 
   private resize() {
     this.layoutCache = null;
-    const { width, height } = this.layout();
+    this.layout();
+    const { w: width, h: height } = this.physicalSize();
     const dpr = window.devicePixelRatio || 1;
     this.stage.style.height = `${height}px`;
     for (const c of [this.linesCanvas, this.overlayCanvas]) {
@@ -412,13 +431,21 @@ export class View {
         curves: !!this.model.get("curves"),
         bundle: bundleAxis >= 0 ? { axis: bundleAxis, strength: Math.min(1, Math.max(0, Number(this.model.get("bundle_strength") ?? 0.5))) } : null,
         dpr,
+        transpose: layout.horizontal,
       });
     }
     if (this.dirtyOverlay) {
       const ctx = this.overlayCanvas.getContext("2d")!;
-      ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+      ctx.setTransform(1, 0, 0, 1, 0, 0);
+      ctx.clearRect(0, 0, this.overlayCanvas.width, this.overlayCanvas.height);
+      let restore = () => {};
+      if (layout.horizontal) {
+        ctx.setTransform(0, dpr, dpr, 0, 0, 0);
+        restore = uprightText(ctx, dpr);
+      } else ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
       drawOverlay(ctx, layout, this.scales(), this.sel, this.theme, this.readouts(), this.model.get("histograms") === false ? null : this.hist);
       this.drawHighlight(ctx);
+      restore();
       this.dirtyOverlay = false;
     }
     this.updateStatus(layout);
@@ -535,8 +562,9 @@ export class View {
     this.tip.textContent = lines.join("\n");
     this.tip.style.display = "block";
     const x = layout.slots[Math.min(1, layout.slots.length - 1)].x;
-    this.tip.style.left = `${Math.max(4, Math.min(layout.width - 180, x))}px`;
-    this.tip.style.top = `${layout.top}px`;
+    const left = Math.max(4, Math.min(layout.width - 180, x));
+    this.tip.style.left = `${layout.horizontal ? layout.top : left}px`;
+    this.tip.style.top = `${layout.horizontal ? left : layout.top}px`;
   }
 
   private updateStatus(layout: Layout) {

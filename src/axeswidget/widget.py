@@ -87,6 +87,7 @@ class AxesWidget(anywidget.AnyWidget):
     bundle_strength = t.Float(0.5).tag(sync=True)
     histograms = t.Bool(True).tag(sync=True)
     pinned = t.Int(-1).tag(sync=True)
+    orientation = t.Enum(["vertical", "horizontal"], "vertical").tag(sync=True)
 
     def __init__(
         self, data, axes=None, *, ranges=None, height: int = 380, names=None, resume=None, **options
@@ -525,6 +526,7 @@ _OPTIONS = (
     "bundle_by",
     "bundle_strength",
     "histograms",
+    "orientation",
     "log_axes",
     "height",
 )
