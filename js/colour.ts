@@ -1,16 +1,20 @@
 // Colours: viridis for continuous values, Okabe–Ito for categories, and the per-row colour table.
 //
 // viridis: van der Walt & Smith's perceptually uniform, colour-blind-safe map (public domain, CC0),
-// here as 33 evenly spaced stops, interpolated linearly. Okabe & Ito (2002) "Color Universal Design"
+// here as 65 evenly spaced stops, interpolated linearly. Okabe & Ito (2002) "Color Universal Design"
 // palette for categories (black left out, since it vanishes on dark themes).
 
 import { CODE_MAX, CODE_MISSING, isCategorical, type AxisData } from "./data";
 
 const VIRIDIS_STOPS = [
-  "#440154", "#470d60", "#48186a", "#482374", "#472d7b", "#453781", "#424086", "#3e4989", "#3b528b",
-  "#375b8d", "#33638d", "#2f6b8e", "#2c728e", "#297a8e", "#26828e", "#23898e", "#21918c", "#1f988b",
-  "#1fa088", "#22a785", "#28ae80", "#32b67a", "#3fbc73", "#4ec36b", "#5ec962", "#70cf57", "#84d44b",
-  "#98d83e", "#addc30", "#c2df23", "#d8e219", "#ece51b", "#fde725",
+  "#440154", "#46065a", "#470d60", "#471365", "#48186a", "#481d6f", "#482374", "#482878", "#472d7b",
+  "#46327e", "#453681", "#443b84", "#424086", "#404587", "#3f4989", "#3d4e8a", "#3b528b", "#39568c",
+  "#375a8d", "#355e8d", "#33638d", "#31668e", "#2f6a8e", "#2e6e8e", "#2c728e", "#2b768e", "#297a8e",
+  "#287d8e", "#26818e", "#25858e", "#23898e", "#228c8d", "#21908c", "#20948c", "#1f988b", "#1e9b8a",
+  "#1f9f88", "#20a387", "#21a685", "#24aa83", "#28ae80", "#2cb17e", "#31b57b", "#37b877", "#3ebc74",
+  "#45bf70", "#4cc26c", "#54c667", "#5dc963", "#65cc5d", "#6ece58", "#78d152", "#82d34c", "#8cd646",
+  "#96d83f", "#a0da39", "#abdc32", "#b5de2b", "#c0df24", "#cbe11f", "#d5e21a", "#e0e318", "#eae51a",
+  "#f4e61e", "#fde725",
 ];
 
 /** Okabe–Ito: orange, sky blue, bluish green, yellow, blue, vermillion, reddish purple */

@@ -592,6 +592,7 @@ export class View {
       ),
       flipped: sc.filter((x) => x.flipped).map((x) => x.axis.name),
       readouts: this.readouts(),
+      horizontal: layout.horizontal,
       hover: this.hover,
       pinned: this.model.get("pinned") ?? -1,
       picked: Object.fromEntries(Object.entries(this.sel).map(([k, v]) => [k, { bands: v.bands, lane: v.lane }])),
