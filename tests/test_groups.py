@@ -44,6 +44,9 @@ def test_query_quotes_awkward_names_and_refuses_what_query_cannot_name():
     w.ranges = {"5": [[1, 2]]}
     with pytest.raises(ValueError, match="label 5 is not a string"):
         w.to_query()
+    inf = aw.AxesWidget(pd.DataFrame({"Inf": [1.0, 2.0]}), ranges={"Inf": [[1, 1.5]]})
+    with pytest.raises(ValueError, match="reads this name as infinity"):
+        inf.to_query()
 
 
 def test_tz_aware_and_duration_axes_in_query():
@@ -57,7 +60,7 @@ def test_tz_aware_and_duration_axes_in_query():
 
 
 NAMES = st.text(alphabet=string.ascii_letters + " _-()/.%'\"<>&", min_size=1, max_size=12).filter(
-    lambda s: s.strip() == s and not s.isdigit()
+    lambda s: s.strip() == s and not s.isdigit() and s not in ("inf", "Inf")  # query reads these as infinity
 )
 
 
@@ -181,3 +184,26 @@ def test_incremental_update_touches_one_axis(fleet, monkeypatch):
     w.ranges = r
     assert touched == ["head_m"]
     np.testing.assert_array_equal(w.mask, fleet["head_m"].between(10, 30).to_numpy())  # reference: between
+
+
+def test_resume_takes_over_the_previous_view_where_it_fits(fleet):
+    old = aw.AxesWidget(fleet, color_by="site", view_mode="lines")
+    old.ranges = {"site": ["Red Gully"], "flow_m3h": [[20, 80]]}
+    old.keep("sandy")
+    old.order = list(reversed(old.order))
+    old.flipped = ["head_m"]
+    again = aw.AxesWidget(fleet, resume=old)
+    assert again.ranges == old.ranges and again.order == old.order and again.flipped == ["head_m"]
+    assert again.color_by == "site" and again.view_mode == "lines" and list(again.saved) == ["sandy"]
+    np.testing.assert_array_equal(again.mask, old.mask)
+    # new data without some columns: what fits is kept, the rest is named in a warning
+    smaller = fleet.drop(columns=["site"])
+    with pytest.warns(UserWarning, match="could not take over: color_by, site, saved selection 'sandy'"):
+        third = aw.AxesWidget(smaller, resume=old)
+    assert third.ranges == {"flow_m3h": [[20.0, 80.0]]}
+    ref = smaller["flow_m3h"].between(20, 80)  # reference: Series.between
+    np.testing.assert_array_equal(third.mask, ref.to_numpy())
+    with pytest.raises(TypeError, match="resume= takes an AxesWidget"):
+        aw.AxesWidget(fleet, resume="yesterday")
+    with pytest.raises(TypeError, match="unknown option 'colour'"):
+        aw.AxesWidget(fleet, colour="site")

@@ -263,6 +263,10 @@ def _quote(col: Column) -> str:
         raise SelectionError(
             f"column {col.name!r}: its label {label!r} is not a string, so DataFrame.query cannot refer to it"
         )
+    if label in ("inf", "Inf"):
+        raise SelectionError(
+            f"column {label!r}: DataFrame.query reads this name as infinity; rename the column"
+        )
     if "`" in label:
         raise SelectionError(f"column {label!r}: a name with a backtick cannot be quoted in DataFrame.query")
     return f"`{label}`"

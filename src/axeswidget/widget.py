@@ -115,24 +115,21 @@ class AxesWidget(anywidget.AnyWidget):
         if not isinstance(other, AxesWidget):
             raise TypeError(f"resume= takes an AxesWidget, got {type(other).__name__}")
         dropped = []
+        for key in _OPTIONS:  # one by one, outside the hold below: a bad value raises at once
+            try:
+                setattr(self, key, getattr(other, key))
+            except t.TraitError:
+                dropped.append(key)
         with self.hold_trait_notifications():
             self.order = [a for a in other.order if a in self._columns] + [
                 a for a in self._columns if a not in other.order
             ]
             self.flipped = [a for a in other.flipped if a in self._columns]
-            for key in _OPTIONS:
-                try:
-                    setattr(self, key, getattr(other, key))
-                except t.TraitError:
-                    dropped.append(key)
             kept = {}
             for axis, items in other.ranges.items():
                 col = self._columns.get(axis)
-                clipped = (
-                    _clip_items(items, col)
-                    if col is not None and col.kind == other._columns[axis].kind
-                    else []
-                )
+                same_kind = col is not None and col.kind == other._columns[axis].kind
+                clipped = _clip_items(items, col, clip=False) if same_kind else []
                 if clipped:
                     kept[axis] = clipped
                 else:
@@ -532,8 +529,11 @@ _OPTIONS = (
 )
 
 
-def _clip_items(items: list, col: Column) -> list:
-    """Items of an old selection that still make sense on a new column (ranges clipped to its domain)."""
+def _clip_items(items: list, col: Column, clip: bool = True) -> list:
+    """Items of an old selection that still make sense on a new column.
+
+    Ranges that miss the new domain are dropped; with ``clip`` the others are clipped to it.
+    """
     out = []
     for item in items:
         if item is None:
@@ -551,7 +551,7 @@ def _clip_items(items: list, col: Column) -> list:
                 and not (a is not None and a > hi)
                 and not (b is not None and b < lo)
             ):
-                out.append([a, b])
+                out.append([a, b] if clip else list(item))
         else:
             out.append(item)
     return out

@@ -105,3 +105,111 @@ def test_drag_in_jupyterlab_gives_exact_kernel_mask(browser, lab):
         assert not dialogs
     finally:
         page.close()
+
+
+TWO_VIEWS = """
+import axeswidget as aw
+fleet = aw.demo.pump_fleet(3000, seed=5)
+w = aw.AxesWidget(fleet, axes=["flow_m3h", "head_m", "efficiency_pct"], height=320)
+w.ranges = {"head_m": [[20.0, 40.0]]}
+w.order = ["efficiency_pct", "flow_m3h", "head_m"]
+w
+"""
+
+SECOND_VIEW = "w  # a second live view of the same state"
+
+READ_STATE = """
+import json
+print(json.dumps({"ranges": w.ranges, "order": w.order, "count": w.count}))
+"""
+
+
+def _state_of(page, i):
+    root = page.locator(".axw-root").nth(i)
+    lay = json.loads(root.get_attribute("data-layout"))
+    return root, lay
+
+
+def test_second_view_is_live_and_reload_keeps_the_view(browser, lab):
+    name = lab.write_notebook("keep.ipynb", [TWO_VIEWS, SECOND_VIEW, READ_STATE])
+    page = browser.new_page(viewport={"width": 1280, "height": 1400})
+    try:
+        nb = LabNotebook(page, lab, name)
+        nb.run(0)
+        nb.run(1)
+        page.wait_for_function("() => document.querySelectorAll('.axw-root').length === 2", timeout=30_000)
+        # drag a second range in the second view; the first view follows
+        root, lay = _state_of(page, 1)
+        ax = next(a for a in lay["axes"] if a["name"] == "flow_m3h")
+        box = page.locator("canvas.axw-overlay").nth(1).bounding_box()
+
+        def y(v):
+            f = (v - ax["lo"]) / (ax["hi"] - ax["lo"])
+            return box["y"] + lay["bottom"] - f * (lay["bottom"] - lay["top"])
+
+        x = box["x"] + ax["x"]
+        page.mouse.move(x, y(120))
+        page.mouse.down()
+        page.mouse.move(x, y(40), steps=8)
+        page.mouse.up()
+        page.wait_for_function(
+            "() => [...document.querySelectorAll('.axw-root')].every(r => r.dataset.state === 'synced')"
+            " && new Set([...document.querySelectorAll('.axw-root')].map(r => r.dataset.count)).size === 1",
+            timeout=20_000,
+        )
+        nb.run(2)
+        state = json.loads(nb.output_text(2).strip().splitlines()[-1])
+        assert set(state["ranges"]) == {"head_m", "flow_m3h"}
+        assert state["order"] == ["efficiency_pct", "flow_m3h", "head_m"]
+        first, lay0 = _state_of(page, 0)
+        assert int(first.get_attribute("data-count")) == state["count"]
+        assert sorted(b["name"] for b in lay0["bands"]) == ["flow_m3h", "head_m"]
+
+        # save, reload the page: the view comes back with the same ranges and order
+        page.evaluate("() => { window.jupyterapp.commands.execute('docmanager:save'); }")
+        page.wait_for_timeout(1500)
+        page.reload()
+        page.wait_for_selector(".axw-root canvas.axw-overlay", timeout=60_000)
+        page.wait_for_function(
+            "(n) => { const r = document.querySelector('.axw-root');"
+            " return r && r.dataset.count === String(n); }",
+            arg=state["count"],
+            timeout=30_000,
+        )
+        _, lay = _state_of(page, 0)
+        assert [a["name"] for a in lay["axes"]] == state["order"]
+        assert sorted(b["name"] for b in lay["bands"]) == ["flow_m3h", "head_m"]
+    finally:
+        page.close()
+
+
+BIG = """
+import numpy as np, pandas as pd, axeswidget as aw
+rng = np.random.default_rng(1)
+big = pd.DataFrame(rng.normal(size=(1_000_000, 20)), columns=[f"m{i:02d}" for i in range(20)])
+wb = aw.AxesWidget(big, height=360)
+wb
+"""
+
+
+def test_a_million_rows_by_twenty_columns_loads_in_jupyterlab(browser, lab):
+    name = lab.write_notebook(
+        "big.ipynb", [BIG, "print(wb.count, sum(memoryview(c['codes']).nbytes for c in wb.table['columns']))"]
+    )
+    page = browser.new_page(viewport={"width": 1280, "height": 900})
+    try:
+        nb = LabNotebook(page, lab, name)
+        nb.run(0, timeout=120_000)
+        page.wait_for_function(
+            "() => { const r = document.querySelector('.axw-root');"
+            " return r && Number(r.dataset.drawn || 0) >= 1; }",
+            timeout=180_000,
+        )
+        root = page.locator(".axw-root").first
+        assert root.get_attribute("data-total") == "1000000"
+        assert root.get_attribute("data-mode") == "density"
+        nb.run(1)
+        count, nbytes = map(int, nb.output_text(1).split())
+        assert count == 1_000_000 and nbytes == 2 * 20 * 1_000_000  # 2 bytes per cell on the wire
+    finally:
+        page.close()
