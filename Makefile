@@ -41,8 +41,9 @@ pytest: install
 test: install lint typecheck jstest pytest
 
 demo: install
-	@echo "Starting JupyterLab on http://127.0.0.1:$(PORT)/lab/tree/notebooks/demo.ipynb (Ctrl-C to stop)"
-	$(VENV)/bin/jupyter lab --no-browser --ip=127.0.0.1 --port=$(PORT) \
+	@echo "Starting JupyterLab on 127.0.0.1:$(PORT) with notebooks/demo.ipynb; open the URL printed below"
+	@echo "(it carries the access token). Ctrl-C stops the server."
+	$(VENV)/bin/jupyter lab --no-browser --allow-root --ip=127.0.0.1 --port=$(PORT) \
 		--ServerApp.root_dir=$(CURDIR) notebooks/demo.ipynb
 
 bench: install

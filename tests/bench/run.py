@@ -1,7 +1,11 @@
 """`make bench`: speed and size as ratios against baselines measured in the same run.
 
 Never a pass/fail test: these machines are shared and noisy. Each figure is printed as a table and
-written to bench-results/bench.json. Run: ``python -m tests.bench.run [--quick]``.
+written to bench-results/bench.json. Run: ``python -m tests.bench.run [--quick] [--no-browser]``.
+
+Figures: the mask update (vs a bare numpy range test), wire bytes per cell, axis ordering (vs scipy),
+density pair counts (vs numpy.histogram2d) and, in headless Chromium, drawing, loading, dragging and
+the round trip (tests/bench/browser.py).
 """
 
 from __future__ import annotations
@@ -16,6 +20,7 @@ import numpy as np
 import pandas as pd
 
 import axeswidget as aw
+from axeswidget import density, ordering
 
 OUT = Path(__file__).resolve().parents[2] / "bench-results"
 
@@ -70,9 +75,116 @@ def bench_wire(rows: int, cols: int) -> dict:
     return {"rows": rows, "cols": cols, "bytes": nbytes, "bytes_per_cell": nbytes / (rows * cols)}
 
 
+def correlated_table(rows: int, cols: int, seed: int = 0) -> pd.DataFrame:
+    """Complete random table with structure: groups of columns share a factor, some with a sign flip or a
+    monotone bend, the rest independent (scipy's spearmanr propagates NaN, so no missing values here)."""
+    rng = np.random.default_rng(seed)
+    data = rng.normal(size=(rows, cols))
+    factors = rng.normal(size=(rows, 3))
+    for j in range(cols):
+        if j % 4 == 3:
+            continue  # independent
+        f = factors[:, j % 3]
+        v = (1.0 if j % 2 == 0 else -1.0) * f + (0.3 + 0.2 * (j % 5)) * data[:, j]
+        data[:, j] = np.exp(v / 2) if j % 3 == 1 else v
+    return pd.DataFrame(data, columns=[f"c{i:02d}" for i in range(cols)])
+
+
+def bench_ordering(rows: int, cols: int) -> dict:
+    """Spearman matrix + best_order (exact and sampled) vs scipy.stats.spearmanr on the whole table;
+    Kendall tau-b and crossings of one pair vs scipy.stats.kendalltau."""
+    from scipy import stats
+
+    df = correlated_table(rows, cols)
+    data = df.to_numpy()
+    repeat = 2 if rows >= 10**6 else 3
+    box: dict = {}
+
+    def ours(key, **sample):
+        def run():
+            m = ordering.association(df, "spearman", **sample)
+            box[key] = (m, ordering.best_order(m))
+
+        return run
+
+    def scipy_matrix():
+        box["scipy"] = stats.spearmanr(data).statistic
+
+    t_exact = best_of(ours("exact", max_rows=None), repeat)
+    t_sample = best_of(ours("sample"), repeat)  # association's default max_rows
+    t_ref = best_of(scipy_matrix, repeat)
+    x, y = data[:, 0], data[:, 1]
+    t_tau = best_of(lambda: box.update(tau=ordering.kendall_tau_b(x, y)), repeat)
+    t_cross = best_of(lambda: box.update(cross=ordering.crossings(x, y)), repeat)
+    t_ref_tau = best_of(lambda: box.update(ref_tau=stats.kendalltau(x, y).statistic), repeat)
+    exact_matrix = box["exact"][0].to_numpy()
+    return {
+        "rows": rows,
+        "cols": cols,
+        "spearman_exact_s": t_exact,
+        "spearman_sample_s": t_sample,
+        "sample_rows": int(box["sample"][0].attrs["rows_used"]),
+        "scipy_spearmanr_s": t_ref,
+        "ratio_exact": t_exact / t_ref,
+        "ratio_sample": t_sample / t_ref,
+        "max_abs_diff_exact_vs_scipy": float(np.nanmax(np.abs(exact_matrix - box["scipy"]))),
+        "order_exact": box["exact"][1],
+        "order_sample": box["sample"][1],
+        "kendall_tau_b_s": t_tau,
+        "crossings_s": t_cross,
+        "scipy_kendalltau_s": t_ref_tau,
+        "ratio_tau": t_tau / t_ref_tau,
+        "ratio_crossings": t_cross / t_ref_tau,
+        "abs_diff_tau_vs_scipy": abs(box["tau"] - box["ref_tau"]),
+    }
+
+
+def bench_density(rows: int, cols: int, bins: int = 128) -> dict:
+    """Neighbour pair counts (selected and unselected layers) vs numpy.histogram2d on the same bins."""
+    rng = np.random.default_rng(0)
+    codes = [rng.integers(0, 65536, rows).astype(np.uint16) for _ in range(cols)]
+    mask = rng.random(rows) < 0.3
+    edges = np.concatenate([np.arange(bins + 1) * 65535 / bins, [65536]])
+    box: dict = {}
+
+    def ours():
+        box["ours"] = (
+            density.neighbour_counts(codes, None, bins, mask),
+            density.neighbour_counts(codes, None, bins, ~mask),
+        )
+
+    def reference():
+        out = []
+        for m in (mask, ~mask):
+            out.append(
+                [
+                    np.histogram2d(codes[i][m], codes[i + 1][m], bins=[edges, edges])[0]
+                    for i in range(cols - 1)
+                ]
+            )
+        box["ref"] = out
+
+    t_ours, t_ref = best_of(ours, 3), best_of(reference, 1 if rows >= 10**6 else 3)
+    same = all(
+        np.array_equal(a, b)
+        for layer, ref in zip(box["ours"], box["ref"], strict=True)
+        for a, b in zip(layer, ref, strict=True)
+    )
+    return {
+        "rows": rows,
+        "cols": cols,
+        "bins": bins,
+        "ours_s": t_ours,
+        "histogram2d_s": t_ref,
+        "ratio": t_ours / t_ref,
+        "same_counts": same,
+    }
+
+
 def main(argv=None) -> dict:
     ap = argparse.ArgumentParser(description=__doc__)
     ap.add_argument("--quick", action="store_true", help="only the 10^4 and 10^5 sizes")
+    ap.add_argument("--no-browser", action="store_true", help="skip the headless Chromium figures")
     args = ap.parse_args(argv)
     sizes = [(10**4, 10), (10**5, 10), (10**5, 20)] + ([] if args.quick else [(10**6, 10), (10**6, 20)])
     results = {
@@ -93,6 +205,44 @@ def main(argv=None) -> dict:
         r = bench_wire(rows, cols)
         results["wire"].append(r)
         print(f"{rows:>9} {cols:>4} {r['bytes_per_cell']:>6.2f} B/cell ({r['bytes'] / 1e6:.1f} MB)")
+
+    results["ordering"] = []
+    print("\nordering: Spearman matrix + best_order vs scipy.stats.spearmanr(data) on the whole table;")
+    print(
+        "          Kendall tau-b and crossings of one pair vs scipy.stats.kendalltau (ratios: ours / scipy)"
+    )
+    print(
+        f"{'rows':>9} {'cols':>4} {'exact':>7} {'sample':>7} {'scipy s':>8} {'tau':>6} {'cross':>6}"
+        f" {'kendalltau s':>12}  max|rho - scipy|"
+    )
+    for rows, cols in sizes:
+        r = bench_ordering(rows, cols)
+        results["ordering"].append(r)
+        print(
+            f"{rows:>9} {cols:>4} {r['ratio_exact']:>6.2f}x {r['ratio_sample']:>6.2f}x"
+            f" {r['scipy_spearmanr_s']:>8.3f} {r['ratio_tau']:>5.2f}x {r['ratio_crossings']:>5.2f}x"
+            f" {r['scipy_kendalltau_s']:>12.3f}"
+            f"  {r['max_abs_diff_exact_vs_scipy']:.1e}"
+        )
+    print("          (exact: max_rows=None; sample: association's default max_rows, all rows when fewer)")
+
+    results["density"] = []
+    print("\ndensity: neighbour pair counts, 128 bins, selected + unselected layers, vs numpy.histogram2d")
+    print(f"{'rows':>9} {'cols':>4} {'ours ms':>9} {'histogram2d ms':>15} {'ratio':>7} same counts")
+    for rows, cols in sizes:
+        r = bench_density(rows, cols)
+        results["density"].append(r)
+        print(
+            f"{rows:>9} {cols:>4} {1e3 * r['ours_s']:>9.1f} {1e3 * r['histogram2d_s']:>15.1f}"
+            f" {r['ratio']:>7.3f} {r['same_counts']}"
+        )
+
+    if args.no_browser:
+        results["browser"] = {"skipped": "--no-browser"}
+    else:
+        from tests.bench import browser
+
+        results["browser"] = browser.run(quick=args.quick)
     OUT.mkdir(exist_ok=True)
     (OUT / "bench.json").write_text(json.dumps(results, indent=2))
     print(f"\nwritten to {OUT / 'bench.json'}")
