@@ -13,7 +13,6 @@
 
 import { type Colouring, type RGB } from "./colour";
 import { CODE_MISSING, isCategorical, type Table } from "./data";
-import { rowPlacement } from "./draw";
 import type { Layout } from "./layout";
 import { Accumulator, gainForOpacity } from "./raster";
 import type { AxisScale } from "./scales";
@@ -24,6 +23,8 @@ export interface PaintJob {
   table: Table;
   layout: Layout;
   scales: AxisScale[];
+  /** per axis: y of a code is base[code] + spread[row] * height[code] (see draw.rowPlacement) */
+  place: { base: Float32Array; height: Float32Array }[];
   spread: Float32Array;
   /** null: nothing is selected away, every row is drawn in colour */
   mask: Uint8Array | null;
@@ -49,7 +50,7 @@ export interface PaintResult {
 
 export const BINS = 128;
 export const HIST_BINS = 64;
-const CHUNK_MS = 20;
+const CHUNK_MS = 14;
 const SHOW_MS = 180;
 
 const yieldToPage = (() => {
@@ -120,7 +121,7 @@ export class LinePainter {
     let chunk = 2048;
 
     const show = () => {
-      compose(fad, sel, image, fadedGain, gain);
+      compose(fad, sel, image, fadedGain, gain, job.mask !== null);
       if (!job.transpose) {
         ctx.putImageData(image, 0, 0);
         return;
@@ -140,11 +141,13 @@ export class LinePainter {
         chunk = Math.max(256, Math.min(1 << 18, Math.round((chunk * CHUNK_MS) / Math.max(1, took))));
         if (i0 < n) {
           if (performance.now() - t0 > 300) this.onProgress(share[0] + (share[1] - share[0]) * (i0 / n));
+          await yieldToPage();
+          if (token !== this.token) return false;
           if (performance.now() - shown > SHOW_MS) {
             show();
             shown = performance.now();
+            await yieldToPage();
           }
-          await yieldToPage();
           if (token !== this.token) return false;
         }
       }
@@ -152,7 +155,7 @@ export class LinePainter {
     };
 
     if (k >= 2 && n > 0) {
-      const place = rowPlacement(job.scales, job.layout);
+      const place = job.place;
       const xs = new Float32Array(job.layout.slots.map((s) => s.x * job.dpr));
       const rowY = (a: number, i: number) => {
         const c = codes[a][i];
@@ -204,6 +207,11 @@ export class LinePainter {
       void groups;
     }
     const axesOut = bundle ? 2 * k - 1 : k;
+    const place = job.place;
+    const bases = place.map((p) => p.base);
+    const heights = place.map((p) => p.height);
+    const spread = job.spread;
+    const dpr = job.dpr;
     const xsOut = new Float32Array(axesOut);
     for (let a = 0; a < k; a++) {
       xsOut[bundle ? 2 * a : a] = xs[a];
@@ -224,28 +232,40 @@ export class LinePainter {
         filterFad = new Uint8Array(rows);
       }
       let anyFaded = false;
+      const step = bundle ? 2 : 1;
       for (let r = 0; r < rows; r++) {
-        const i = i0 + r;
-        const on = mask ? mask[i] : 1;
+        const on = mask ? mask[i0 + r] : 1;
         filterSel[r] = on;
         filterFad[r] = on ? 0 : 1;
-        anyFaded ||= !on;
-        const base = r * axesOut;
-        for (let a = 0; a < k; a++) {
-          const y = rowY(a, i);
-          ys[base + (bundle ? 2 * a : a)] = y;
-          const c = codes[a][i];
-          const hb = c === CODE_MISSING ? -1 : c >> 10;
-          if (hb >= 0) {
-            histAll[a][hb]++;
-            if (on) histSelected[a][hb]++;
+        if (!on) anyFaded = true;
+      }
+      // column by column: one axis's codes, placement tables and histograms stay in cache
+      for (let a = 0; a < k; a++) {
+        const col = codes[a];
+        const base = bases[a];
+        const height = heights[a];
+        const all = histAll[a];
+        const chosen = histSelected[a];
+        let at = a * step;
+        for (let r = 0; r < rows; r++, at += axesOut) {
+          const i = i0 + r;
+          const c = col[i];
+          ys[at] = (base[c] + spread[i] * height[c]) * dpr;
+          if (c !== CODE_MISSING) {
+            const hb = c >> 10;
+            all[hb]++;
+            if (filterSel[r]) chosen[hb]++;
           }
         }
+      }
+      for (let r = 0; r < rows; r++) {
+        const i = i0 + r;
+        const rowBase = r * axesOut;
         if (bundle && centres) {
           const g = Math.min(63, codes[bundle.axis][i] === CODE_MISSING ? 63 : codes[bundle.axis][i]);
           for (let a = 0; a + 1 < k; a++) {
-            const mid = (ys[base + 2 * a] + ys[base + 2 * a + 2]) / 2;
-            ys[base + 2 * a + 1] = (1 - s) * mid + s * centres[a * 64 + g];
+            const mid = (ys[rowBase + 2 * a] + ys[rowBase + 2 * a + 2]) / 2;
+            ys[rowBase + 2 * a + 1] = (1 - s) * mid + s * centres[a * 64 + g];
           }
         }
         if (group) {
@@ -290,11 +310,15 @@ export class LinePainter {
       return palette[Math.min(palette.length - 2, Math.round(((g + 0.5) * (palette.length - 1)) / 8))];
     };
     const B = BINS + 1; // last bin: missing
-    const binOf = (a: number, i: number) => {
-      const c = codes[a][i];
-      if (c === CODE_MISSING) return BINS;
-      return isCategorical(job.scales[a].axis) ? Math.min(BINS - 1, c) : c >> 9;
-    };
+    // bin of every code per axis: floor(code * BINS / 65535) as in density.py; category bands keep
+    // their band number; the missing code gets the last bin
+    const luts = job.scales.map((sc) => {
+      const lut = new Uint8Array(65536);
+      const categorical = isCategorical(sc.axis);
+      for (let c = 0; c < 65535; c++) lut[c] = categorical ? Math.min(BINS - 1, c) : Math.floor((c * BINS) / 65535);
+      lut[CODE_MISSING] = BINS;
+      return lut;
+    });
     const cells = B * B;
     const selCounts = Array.from({ length: k - 1 }, () => new Uint32Array(G * cells));
     const fadCounts = Array.from({ length: k - 1 }, () => new Uint32Array(cells));
@@ -304,7 +328,7 @@ export class LinePainter {
         const on = mask ? mask[i] : 1;
         const g = gOf(i);
         for (let a = 0; a < k; a++) {
-          const b = binOf(a, i);
+          const b = luts[a][codes[a][i]];
           bins[a] = b;
           const c = codes[a][i];
           if (c !== CODE_MISSING) {
@@ -325,7 +349,7 @@ export class LinePainter {
         if (isCategorical(sc.axis)) {
           const band = sc.bands[b];
           ys[b] = band ? ((band.y0 + band.y1) / 2) * job.dpr : NaN;
-        } else ys[b] = sc.codePixel((b + 0.5) * 512) * job.dpr;
+        } else ys[b] = sc.codePixel(Math.min(65534, ((b + 0.5) * 65535) / BINS)) * job.dpr;
       }
       ys[BINS] = job.layout.laneY * job.dpr;
       void a;
@@ -343,11 +367,22 @@ export class LinePainter {
         else acc.segment(x0, y0, x1, y1, colour[0], colour[1], colour[2], w);
       }
     };
+    let slice = performance.now();
+    const breathe = async () => {
+      if (performance.now() - slice < CHUNK_MS) return true;
+      await yieldToPage();
+      slice = performance.now();
+      return token === this.token;
+    };
+    const token = this.token;
     for (let a = 0; a + 1 < k; a++) {
       draw(fad, fadCounts[a], a, job.faded, 0);
-      for (let g = 0; g < G; g++) draw(sel, selCounts[a], a, groupColour(g), g * cells);
+      if (!(await breathe())) return false;
+      for (let g = 0; g < G; g++) {
+        draw(sel, selCounts[a], a, groupColour(g), g * cells);
+        if (!(await breathe())) return false;
+      }
       this.onProgress(0.7 + (0.3 * (a + 1)) / (k - 1));
-      await yieldToPage();
     }
     return true;
   }
@@ -366,10 +401,11 @@ export function transpose(src: ImageData, dst: ImageData) {
 }
 
 /** Selected layer over faded layer (straight alpha), into `image`. */
-export function compose(fad: Accumulator, sel: Accumulator, image: ImageData, fadedGain: number, gain: number) {
+export function compose(fad: Accumulator, sel: Accumulator, image: ImageData, fadedGain: number, gain: number, fadedUsed = true) {
   const out = image.data;
   const tmp = compose.buffer.length === out.length ? compose.buffer : (compose.buffer = new Uint8ClampedArray(out.length));
-  fad.resolve(out, fadedGain);
+  if (fadedUsed) fad.resolve(out, fadedGain);
+  else out.fill(0);
   sel.resolve(tmp, gain);
   for (let p = 0; p < out.length; p += 4) {
     const as = tmp[p + 3];

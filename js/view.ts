@@ -422,6 +422,7 @@ export class View {
         table: this.table,
         layout,
         scales: this.scales(),
+        place: this.placement(),
         spread: this.spread,
         mask: shownMask,
         colouring: this.colouringNow(),
