@@ -391,3 +391,21 @@ def test_palmerpenguins_categories_and_missing_counts():
     w.ranges = {"bill_length_mm": [[40, 50], None]}
     ref = penguins["bill_length_mm"].between(40, 50) | penguins["bill_length_mm"].isna()  # between | isna
     np.testing.assert_array_equal(w.mask, ref.to_numpy())
+
+
+def test_many_pandas_categories_keep_the_most_frequent_as_bands_in_their_order():
+    rng = np.random.default_rng(3)
+    cats = [f"c{i:03d}" for i in range(100)]
+    weights = rng.random(100) ** 4
+    values = rng.choice(cats, 20_000, p=weights / weights.sum())
+    s = pd.Series(pd.Categorical(values, categories=cats))
+    w = aw.AxesWidget(pd.DataFrame({"c": s}))
+    spec = w.table["columns"][0]
+    counts = s.value_counts()  # reference: pandas value_counts
+    top = set(counts.sort_values(ascending=False, kind="stable").index[:CATEGORY_BAND_LIMIT])
+    assert set(spec["labels"]) == top
+    assert spec["labels"] == [c for c in cats if c in top]  # the categories' own order
+    assert spec["counts"] == [int(counts[c]) for c in spec["labels"]]
+    rare = next(c for c in cats if c not in top and counts[c] > 0)
+    w.ranges = {"c": [rare, spec["labels"][0]]}
+    np.testing.assert_array_equal(w.mask, s.isin([rare, spec["labels"][0]]).to_numpy())  # reference: isin

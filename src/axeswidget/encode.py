@@ -205,6 +205,16 @@ def _category_column(name, label, series: pd.Series) -> Column:
         cats = list(series.cat.categories)
         codes = series.cat.codes.to_numpy().astype(np.int32)
         counts = np.bincount(codes[codes >= 0], minlength=len(cats))
+        if len(cats) > CATEGORY_BAND_LIMIT:
+            # too many for bands: the most frequent keep a band each (in the categories' order),
+            # the others follow and share the last band
+            top = set(np.argsort(-counts, kind="stable")[:CATEGORY_BAND_LIMIT].tolist())
+            order = [i for i in range(len(cats)) if i in top] + [i for i in range(len(cats)) if i not in top]
+            rank = np.empty(len(cats), dtype=np.int32)
+            rank[order] = np.arange(len(cats), dtype=np.int32)
+            codes = np.where(codes >= 0, rank[np.maximum(codes, 0)], -1).astype(np.int32)
+            cats = [cats[i] for i in order]
+            counts = counts[order]
         labels = [str(c) for c in cats]
         raw = cats
         kind = "category"
