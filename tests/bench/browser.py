@@ -34,18 +34,8 @@ import pandas as pd
 from ipywidgets.widgets.widget import _remove_buffers
 
 import axeswidget as aw
+from tests.conftest import CHROME_ARGS, CHROMIUM
 
-CHROMIUM = "/usr/bin/chromium"
-CHROME_ARGS = [
-    "--headless",
-    "--no-sandbox",
-    "--disable-gpu",
-    "--disable-quic",
-    "--no-first-run",
-    "--disable-background-networking",
-    "--disable-component-update",
-    "--disable-sync",
-]
 HERE = Path(__file__).parent
 STATIC = Path(aw.__file__).parent / "static"
 NOTE = "CPU figures: headless Chromium, --disable-gpu, canvases rendered in software"

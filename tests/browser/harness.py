@@ -134,8 +134,8 @@ class Shown:
         )
 
 
-def show(browser, server: StaticServer, widget, width: int = 940, height: int = 520) -> Shown:
-    """Open a fresh page showing the widget through the stand-in model."""
+def show(browser, server: StaticServer, widget, width: int = 940, height: int = 520, cls=None) -> Shown:
+    """Open a fresh page showing the widget through the stand-in model (as a ``cls``, default Shown)."""
     shutil.copy(STATIC / "widget.js", server.dir / "widget.js")
     shutil.copy(HERE / "standin.html", server.dir / "index.html")
     (server.dir / "state.json").write_text(json.dumps(wire_message(widget.get_state())))
@@ -145,7 +145,7 @@ def show(browser, server: StaticServer, widget, width: int = 940, height: int = 
     page.on("dialog", lambda d: (errors.append("dialog: " + d.message), d.dismiss()))
     page.goto(server.url + "index.html")
     page.wait_for_function("() => window.__ready === true", timeout=20_000)
-    shown = Shown(page, widget)
+    shown = (cls or Shown)(page, widget)
     shown.errors = errors
     shown.settle()
     return shown

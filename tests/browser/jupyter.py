@@ -30,6 +30,12 @@ def _free_port() -> int:
 class JupyterServer:
     """`jupyter lab` with private config/settings/runtime folders, a random token and port."""
 
+    APP = "lab"
+    EXPOSE = "--LabApp.expose_app_in_browser=True"
+    TITLE = "JupyterLab"
+    #: larger page -> server websocket messages than the 10 MiB default (the Notebook 7 test keeps it)
+    EXTRA = ['--ServerApp.tornado_settings={"websocket_max_message_size": 209715200}']
+
     def __init__(self):
         self.root = Path(tempfile.mkdtemp(prefix="axw-lab-"))
         self.private = Path(tempfile.mkdtemp(prefix="axw-labcfg-"))
@@ -53,15 +59,15 @@ class JupyterServer:
         jupyter = Path(sys.executable).parent / "jupyter"
         cmd = [
             str(jupyter),
-            "lab",
+            self.APP,
             "--no-browser",
             "--ip=127.0.0.1",
             f"--port={self.port}",
             "--allow-root",
             f"--ServerApp.token={self.token}",
             f"--ServerApp.root_dir={self.root}",
-            "--LabApp.expose_app_in_browser=True",
-            '--ServerApp.tornado_settings={"websocket_max_message_size": 209715200}',
+            self.EXPOSE,
+            *self.EXTRA,
         ]
         self.log = open(self.private / "server.log", "w")  # noqa: SIM115
         self.proc = subprocess.Popen(
@@ -77,7 +83,9 @@ class JupyterServer:
                 if self.proc.poll() is not None:
                     break
                 time.sleep(0.3)
-        raise RuntimeError("JupyterLab did not start:\n" + (self.private / "server.log").read_text()[-3000:])
+        raise RuntimeError(
+            f"{self.TITLE} did not start:\n" + (self.private / "server.log").read_text()[-3000:]
+        )
 
     def write_notebook(self, name: str, cells: list[str]) -> str:
         nb = {

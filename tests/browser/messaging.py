@@ -1,7 +1,7 @@
-"""A stand-in page that also carries anywidget's custom messages, for the PNG export tests.
+"""The stand-in page with anywidget's custom messages wired to the Python widget, for the PNG tests.
 
-``messaging.html`` is ``standin.html`` plus ``model.send`` / ``msg:custom``. The Python widget's
-``send`` is routed into the page (as the kernel's comm would), and :meth:`MessagingShown.deliver`
+``standin.html`` carries ``model.send`` / ``msg:custom``. The Python widget's ``send`` is routed
+into the page (as the kernel's comm would), and :meth:`MessagingShown.deliver`
 hands what the page sent back to the widget, trait changes first, then custom messages — the order in
 which a kernel handles them after a cell has finished.
 """
@@ -9,10 +9,8 @@ which a kernel handles them after a cell has finished.
 from __future__ import annotations
 
 import base64
-import json
-import shutil
 
-from tests.browser.harness import HERE, STATIC, Shown, StaticServer, wire_message
+from tests.browser.harness import Shown, StaticServer, show
 
 
 class MessagingShown(Shown):
@@ -36,18 +34,7 @@ class MessagingShown(Shown):
 
 
 def show_messaging(browser, server: StaticServer, widget, monkeypatch, width=940, height=560):
-    """Open the widget in ``messaging.html``; ``widget.send`` goes to that page while the test runs."""
-    shutil.copy(STATIC / "widget.js", server.dir / "widget.js")
-    shutil.copy(HERE / "messaging.html", server.dir / "messaging.html")
-    (server.dir / "state-messaging.json").write_text(json.dumps(wire_message(widget.get_state())))
-    page = browser.new_page(viewport={"width": width, "height": height})
-    errors: list[str] = []
-    page.on("pageerror", lambda e: errors.append(str(e)))
-    page.on("dialog", lambda d: (errors.append("dialog: " + d.message), d.dismiss()))
-    page.goto(server.url + "messaging.html")
-    page.wait_for_function("() => window.__ready === true", timeout=20_000)
-    shown = MessagingShown(page, widget)
-    shown.errors = errors
+    """Open the widget in the stand-in page; ``widget.send`` goes to that page while the test runs."""
+    shown = show(browser, server, widget, width=width, height=height, cls=MessagingShown)
     monkeypatch.setattr(widget, "send", shown.kernel_send)
-    shown.settle()
     return shown

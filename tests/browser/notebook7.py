@@ -9,70 +9,16 @@ before a kernel is attached, so readiness is read from ``window.jupyterapp`` ins
 
 from __future__ import annotations
 
-import json
-import os
-import secrets
-import subprocess
-import sys
-import tempfile
-import time
-from pathlib import Path
-
-from tests.browser.jupyter import DIRECT, JupyterServer, _free_port
+from tests.browser.jupyter import JupyterServer
 
 
 class NotebookServer(JupyterServer):
-    """`jupyter notebook` with private config/settings/runtime folders, a random token and port.
+    """`jupyter notebook` (Notebook 7) with private folders, a random token and port."""
 
-    Shares ``write_notebook``, ``url`` and ``close`` with the JupyterLab server; only the start differs.
-    """
-
-    def __init__(self):
-        self.root = Path(tempfile.mkdtemp(prefix="axw-nb7-"))
-        self.private = Path(tempfile.mkdtemp(prefix="axw-nb7cfg-"))
-        self.port = _free_port()
-        self.token = secrets.token_hex(16)
-        env = dict(os.environ)
-        for var, sub in [
-            ("JUPYTER_CONFIG_DIR", "config"),
-            ("JUPYTERLAB_SETTINGS_DIR", "settings"),
-            ("JUPYTERLAB_WORKSPACES_DIR", "workspaces"),
-            ("JUPYTER_RUNTIME_DIR", "runtime"),
-        ]:
-            (self.private / sub).mkdir()
-            env[var] = str(self.private / sub)
-        notif = self.private / "settings" / "@jupyterlab" / "apputils-extension"
-        notif.mkdir(parents=True)
-        (notif / "notification.jupyterlab-settings").write_text(
-            json.dumps({"fetchNews": "false", "checkForUpdates": False})
-        )
-        env["NO_PROXY"] = "127.0.0.1,localhost"
-        cmd = [
-            str(Path(sys.executable).parent / "jupyter"),
-            "notebook",
-            "--no-browser",
-            "--ip=127.0.0.1",
-            f"--port={self.port}",
-            "--allow-root",
-            f"--ServerApp.token={self.token}",
-            f"--ServerApp.root_dir={self.root}",
-            "--JupyterNotebookApp.expose_app_in_browser=True",
-        ]
-        self.log = open(self.private / "server.log", "w")  # noqa: SIM115
-        self.proc = subprocess.Popen(
-            cmd, env=env, stdout=self.log, stderr=subprocess.STDOUT, start_new_session=True
-        )
-        self.base = f"http://127.0.0.1:{self.port}"
-        deadline = time.time() + 60
-        while time.time() < deadline:
-            try:
-                DIRECT.open(f"{self.base}/api/status?token={self.token}", timeout=2).read()
-                return
-            except Exception:
-                if self.proc.poll() is not None:
-                    break
-                time.sleep(0.3)
-        raise RuntimeError("Notebook 7 did not start:\n" + (self.private / "server.log").read_text()[-3000:])
+    APP = "notebook"
+    EXPOSE = "--JupyterNotebookApp.expose_app_in_browser=True"
+    TITLE = "Notebook 7"
+    EXTRA: list[str] = []  # the default 10 MiB page -> server limit: PNGs must fit under it
 
 
 class Notebook7Page:
