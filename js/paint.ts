@@ -48,6 +48,21 @@ export interface PaintResult {
   histAll: Uint32Array[];
 }
 
+/** What one painting pass works with. */
+interface Pass {
+  job: PaintJob;
+  codes: Uint16Array[];
+  /** y (device pixels) of row i on axis a */
+  rowY: (a: number, i: number) => number;
+  xs: Float32Array;
+  sel: Accumulator;
+  fad: Accumulator;
+  histSelected: Uint32Array[];
+  histAll: Uint32Array[];
+  /** run a body over all rows in chunks; false when the job was abandoned */
+  chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>;
+}
+
 export const BINS = 128;
 export const HIST_BINS = 64;
 const CHUNK_MS = 14;
@@ -161,10 +176,8 @@ export class LinePainter {
         const c = codes[a][i];
         return (place[a].base[c] + job.spread[i] * place[a].height[c]) * job.dpr;
       };
-      const ok =
-        job.mode === "density"
-          ? await this.density(job, codes, rowY, xs, sel, fad, histSelected, histAll, chunked)
-          : await this.lines(job, codes, rowY, xs, sel, fad, histSelected, histAll, chunked);
+      const pass: Pass = { job, codes, rowY, xs, sel, fad, histSelected, histAll, chunked };
+      const ok = job.mode === "density" ? await this.density(pass) : await this.lines(pass);
       if (!ok || token !== this.token) return;
     }
     show();
@@ -172,17 +185,8 @@ export class LinePainter {
     this.onDone({ ms: performance.now() - t0, histSelected, histAll });
   }
 
-  private async lines(
-    job: PaintJob,
-    codes: Uint16Array[],
-    rowY: (a: number, i: number) => number,
-    xs: Float32Array,
-    sel: Accumulator,
-    fad: Accumulator,
-    histSelected: Uint32Array[],
-    histAll: Uint32Array[],
-    chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>,
-  ): Promise<boolean> {
+  private async lines(pass: Pass): Promise<boolean> {
+    const { job, codes, rowY, xs, sel, fad, histSelected, histAll, chunked } = pass;
     const k = xs.length;
     const { mask, colouring, bundle } = job;
     const group = colouring.group;
@@ -191,7 +195,6 @@ export class LinePainter {
     let centres: Float64Array | null = null;
     if (bundle) {
       const bcodes = codes[bundle.axis];
-      const groups = 65536;
       const sums = new Float64Array((k - 1) * 64);
       const counts = new Float64Array(64);
       const ok = await chunked((i0, i1) => {
@@ -204,7 +207,6 @@ export class LinePainter {
       if (!ok) return false;
       centres = sums;
       for (let a = 0; a + 1 < k; a++) for (let g = 0; g < 64; g++) if (counts[g]) centres[a * 64 + g] /= counts[g];
-      void groups;
     }
     const axesOut = bundle ? 2 * k - 1 : k;
     const place = job.place;
@@ -281,17 +283,8 @@ export class LinePainter {
     }, [bundle ? 0.2 : 0, 1]);
   }
 
-  private async density(
-    job: PaintJob,
-    codes: Uint16Array[],
-    _rowY: (a: number, i: number) => number,
-    xs: Float32Array,
-    sel: Accumulator,
-    fad: Accumulator,
-    histSelected: Uint32Array[],
-    histAll: Uint32Array[],
-    chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>,
-  ): Promise<boolean> {
+  private async density(pass: Pass): Promise<boolean> {
+    const { job, codes, xs, sel, fad, histSelected, histAll, chunked } = pass;
     const k = xs.length;
     const { mask, colouring } = job;
     // colour groups: at most 9 in density mode (categories keep theirs; continuous values 8 levels)
@@ -343,7 +336,7 @@ export class LinePainter {
     }, [0, 0.7]);
     if (!ok) return false;
     // y of a bin's centre per axis
-    const binY = job.scales.map((sc, a) => {
+    const binY = job.scales.map((sc) => {
       const ys = new Float32Array(B);
       for (let b = 0; b < BINS; b++) {
         if (isCategorical(sc.axis)) {
@@ -352,7 +345,6 @@ export class LinePainter {
         } else ys[b] = sc.codePixel(Math.min(65534, ((b + 0.5) * 65535) / BINS)) * job.dpr;
       }
       ys[BINS] = job.layout.laneY * job.dpr;
-      void a;
       return ys;
     });
     const draw = (acc: Accumulator, counts: Uint32Array, a: number, colour: RGB, offset: number) => {

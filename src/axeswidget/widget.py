@@ -174,26 +174,18 @@ class AxesWidget(anywidget.AnyWidget):
             raise t.TraitError("order names an axis twice: " + ", ".join(twice))
         return order
 
-    @t.validate("color_by")
-    def _check_color_by(self, proposal):
-        name = proposal["value"]
-        if name and name not in self._columns:
-            raise t.TraitError(
-                f"unknown axis {name!r} for color_by; the axes are: {', '.join(self._columns)}"
-            )
-        return name
-
-    @t.validate("bundle_by")
-    def _check_bundle_by(self, proposal):
-        name = proposal["value"]
-        if name:
-            col = self._columns.get(name)
-            if col is None:
-                raise t.TraitError(
-                    f"unknown axis {name!r} for bundle_by; the axes are: {', '.join(self._columns)}"
-                )
-            if col.kind not in ("category", "boolean"):
-                raise t.TraitError(f"bundle_by needs a category axis; {name!r} is a {col.kind} axis")
+    @t.validate("color_by", "bundle_by")
+    def _check_axis_option(self, proposal):
+        """An axis name (or "" for none); bundle_by needs a category axis."""
+        name, option = proposal["value"], proposal["trait"].name
+        if not name:
+            return name
+        col = self._columns.get(name)
+        if col is None:
+            known = ", ".join(self._columns)
+            raise t.TraitError(f"unknown axis {name!r} for {option}; the axes are: {known}")
+        if option == "bundle_by" and col.kind not in ("category", "boolean"):
+            raise t.TraitError(f"bundle_by needs a category axis; {name!r} is a {col.kind} axis")
         return name
 
     @t.validate("opacity", "bundle_strength")
