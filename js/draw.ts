@@ -41,7 +41,7 @@ export function scalesFor(table: Table, layout: Layout, flipped: Set<string> = n
 
 /** Opacity of one line, from the number of rows drawn: dense tables get fainter lines. */
 export function autoAlpha(n: number): number {
-  return Math.min(0.85, Math.max(0.02, 14 / Math.sqrt(Math.max(1, n))));
+  return Math.min(0.85, Math.max(0.02, 8 / Math.sqrt(Math.max(1, n))));
 }
 
 /**
@@ -334,6 +334,6 @@ export function drawOverlay(
     if (i + 1 >= layout.slots.length || !isFinite(r.value)) return;
     const x = (layout.slots[i].x + layout.slots[i + 1].x) / 2;
     ctx.fillStyle = r.value >= 0 ? theme.line : NEGATIVE;
-    ctx.fillText(`ρ ${r.value >= 0 ? "+" : "−"}${Math.abs(r.value).toFixed(2)}`, x, layout.horizontal ? 60 : 33);
+    ctx.fillText(`ρ ${r.value >= 0 ? "+" : "−"}${Math.abs(r.value).toFixed(2)}`, x, layout.horizontal ? 60 : 42);
   });
 }
