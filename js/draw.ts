@@ -36,7 +36,9 @@ export function readTheme(el: Element): Theme {
 }
 
 export function scalesFor(table: Table, layout: Layout, flipped: Set<string> = new Set()): AxisScale[] {
-  return layout.slots.map((s) => new AxisScale(table.byName.get(s.name)!, layout.top, layout.bottom, flipped.has(s.name)));
+  // horizontal axes carry their tick labels side by side: leave them more room
+  const gap = layout.horizontal ? 90 : 55;
+  return layout.slots.map((s) => new AxisScale(table.byName.get(s.name)!, layout.top, layout.bottom, flipped.has(s.name), gap));
 }
 
 /** Opacity of one line, from the number of rows drawn: dense tables get fainter lines. */

@@ -159,6 +159,8 @@ export class AxisScale {
     readonly bottom: number,
     /** a flipped axis has its largest values (last bands) at the bottom */
     readonly flipped = false,
+    /** about this many pixels between ticks */
+    readonly tickGap = 55,
   ) {
     if (isCategorical(axis)) this.layoutBands();
   }
@@ -235,7 +237,7 @@ export class AxisScale {
 
   ticks(): Ticks {
     const a = this.axis;
-    const count = Math.max(2, Math.round((this.bottom - this.top) / 55));
+    const count = Math.max(2, Math.round((this.bottom - this.top) / this.tickGap));
     if (this.categorical) return { values: [], labels: [], step: 0 };
     if (a.kind === "datetime") {
       const t = timeTicks(a.lo / 1e6, a.hi / 1e6, count);

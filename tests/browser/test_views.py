@@ -125,3 +125,28 @@ def test_density_brushing_at_a_million_rows_is_exact(show):
     # reference: pandas.Series.between on the exact values
     np.testing.assert_array_equal(w.mask, df["b"].between(lo, hi).to_numpy())
     assert int(s.root().get_attribute("data-count")) == int(df["b"].between(lo, hi).sum())
+
+
+def test_horizontal_orientation_brushes_along_the_page(show, fleet):
+    w = aw.AxesWidget(fleet, axes=["flow_m3h", "head_m", "efficiency_pct"], orientation="horizontal")
+    s = show(w)
+    s.page.wait_for_function(DRAWN)
+    lay = s.layout()
+    assert lay["horizontal"] is True
+    ax = next(a for a in lay["axes"] if a["name"] == "head_m")
+    box = s.canvas_box()
+
+    def page_x(v):  # values grow to the right; the logical y runs along the page's x
+        f = (v - ax["lo"]) / (ax["hi"] - ax["lo"])
+        return box["x"] + lay["top"] + f * (lay["bottom"] - lay["top"])
+
+    y = box["y"] + ax["x"]  # the axis's logical x is the page's y
+    s.page.mouse.move(page_x(20), y)
+    s.page.mouse.down()
+    s.page.mouse.move(page_x(45), y, steps=8)
+    s.page.mouse.up()
+    s.round_trip()
+    lo, hi = w.ranges["head_m"][0]
+    assert 18 < lo < 22 and 43 < hi < 47
+    np.testing.assert_array_equal(w.mask, fleet["head_m"].between(lo, hi).to_numpy())  # reference: between
+    assert int(s.root().get_attribute("data-count")) == w.count
