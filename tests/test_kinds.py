@@ -409,3 +409,14 @@ def test_many_pandas_categories_keep_the_most_frequent_as_bands_in_their_order()
     rare = next(c for c in cats if c not in top and counts[c] > 0)
     w.ranges = {"c": [rare, spec["labels"][0]]}
     np.testing.assert_array_equal(w.mask, s.isin([rare, spec["labels"][0]]).to_numpy())  # reference: isin
+
+
+def test_swapping_data_drops_named_axes_that_are_gone():
+    old = pd.DataFrame({"a": [1.0, 2.0], "b": [3.0, 4.0], "c": [5.0, 6.0]})
+    w = aw.AxesWidget(old, axes=["a", "c"], ranges={"c": [[5, 5.5]]})
+    with pytest.warns(UserWarning, match="'c'"):
+        w.data = pd.DataFrame({"a": [1.0, 2.0, 3.0], "b": [0.0, 0.0, 0.0]})
+    assert w.axes == ["a"] and w.ranges == {} and w.count == 3
+    with pytest.raises(aw.ColumnError, match="none of the axes"):
+        w.data = pd.DataFrame({"z": [1.0]})
+    assert w.axes == ["a"] and w.count == 3  # nothing lost when the swap is refused

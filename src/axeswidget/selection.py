@@ -227,6 +227,8 @@ class MaskEvaluator:
         self._parts: dict[str, np.ndarray] = {}
         self.mask = np.ones(n, dtype=bool)
         self.mask.flags.writeable = False
+        #: False until the first update: the mask above is a placeholder
+        self.evaluated = False
 
     def update(self, ranges: Ranges) -> np.ndarray:
         """Apply a normalised selection; only axes whose items changed are recomputed."""
@@ -248,6 +250,7 @@ class MaskEvaluator:
                 mask &= part
         mask.flags.writeable = False
         self.mask = mask
+        self.evaluated = True
         return mask
 
 

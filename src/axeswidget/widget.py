@@ -16,7 +16,7 @@ import pandas as pd
 import traitlets as t
 
 from . import export
-from .encode import Column, encode_frame, quantise, table_trait, to_frame
+from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
 from .selection import MaskEvaluator, SelectionError, normalise, pack, to_query
 
 _STATIC = Path(__file__).parent / "static"
@@ -145,8 +145,8 @@ class AxesWidget(anywidget.AnyWidget):
         if dropped:
             warnings.warn(f"axeswidget: could not take over: {', '.join(map(str, dropped))}", stacklevel=3)
 
-    def _load(self, data, axes, names=None) -> None:
-        frame = to_frame(data, names)
+    def _load(self, data, axes, names=None, frame=None) -> None:
+        frame = to_frame(data, names) if frame is None else frame
         columns = encode_frame(frame, axes)
         self._source = None if isinstance(data, pd.DataFrame) else data
         self._frame = frame
@@ -254,7 +254,7 @@ class AxesWidget(anywidget.AnyWidget):
         self._apply(self.ranges)
 
     def _apply(self, ranges):
-        changed = ranges != self._evaluator.ranges or not self.mask_bits
+        changed = not self._evaluator.evaluated or ranges != self._evaluator.ranges
         with self.hold_sync():
             if changed:
                 mask = self._evaluator.update(ranges)
@@ -296,8 +296,18 @@ class AxesWidget(anywidget.AnyWidget):
         """Show a new table; ranges and order on columns that still exist are kept (ranges clipped)."""
         old_ranges, old_order, old_log = dict(self.ranges), list(self.order), list(self.log_axes)
         old_cols = self._columns
-        self._load(new, self._axes_arg)
+        axes = self._axes_arg
         dropped = []
+        frame = to_frame(new)
+        if axes is not None:  # axes named at construction that the new table lacks are dropped too
+            present = {display_name(c) for c in frame.columns} | set(frame.columns)
+            dropped = [display_name(a) for a in axes if a not in present]
+            axes = [a for a in axes if a in present]
+            if not axes:
+                raise ColumnError(
+                    f"the new table has none of the axes {', '.join(map(repr, self._axes_arg))}"
+                )
+        self._load(new, axes, frame=frame)
         kept = {}
         for axis, items in old_ranges.items():
             col = self._columns.get(axis)
@@ -314,13 +324,12 @@ class AxesWidget(anywidget.AnyWidget):
         with self.hold_trait_notifications():
             self.log_axes = [a for a in old_log if a in self._columns and self._columns[a].lo > 0]
             self.order = order
-            self._evaluator.ranges = {"__reload__": []}  # force a full evaluation
             self.ranges = kept
             self._apply(self.ranges)
         if dropped:
             warnings.warn(
-                "axeswidget: dropped selections on axes that are gone, changed kind or fall outside the "
-                f"new data: {', '.join(map(repr, dropped))}",
+                "axeswidget: dropped axes or selections that are gone, changed kind or fall outside the "
+                f"new data: {', '.join(map(repr, dict.fromkeys(dropped)))}",
                 stacklevel=2,
             )
 
