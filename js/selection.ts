@@ -18,7 +18,7 @@ export interface AxisSel {
 }
 
 export type Sel = Record<string, AxisSel>;
-export type TraitItem = [number | string | null, number | string | null] | string | null;
+export type TraitItem = [number | string | null, number | string | null] | string | null | { rest: true };
 export type TraitRanges = Record<string, TraitItem[]>;
 
 export const emptyAxis = (): AxisSel => ({ spans: [], bands: [], lane: false });
@@ -90,6 +90,9 @@ export function fromTrait(table: Table, raw: TraitRanges | null | undefined): Se
       else if (typeof item === "string") {
         const code = a.labels?.indexOf(item) ?? -1;
         if (code >= 0) s.bands.push(code);
+        else if (a.rest) s.bands.push(a.labels?.length ?? 0); // a rarer label: it lives in the shared band
+      } else if (!Array.isArray(item) && typeof item === "object") {
+        if (a.rest) s.bands.push(a.labels?.length ?? 0);
       } else if (Array.isArray(item)) s.spans.push([endToUnits(a, item[0], 0), endToUnits(a, item[1], 1)]);
     }
     out[name] = s;
@@ -118,7 +121,10 @@ export function toTrait(table: Table, sel: Sel, previous: TraitRanges | null | u
       const h = hi >= a.hi && a.inf[1] > 0 ? Infinity : hi;
       items.push([unitsToEnd(a, l), unitsToEnd(a, h)]);
     }
-    for (const b of s.bands) if (a.labels && b < a.labels.length) items.push(a.labels[b]);
+    for (const b of s.bands) {
+      if (a.labels && b < a.labels.length) items.push(a.labels[b]);
+      else if (a.rest && b === (a.labels?.length ?? 0)) items.push({ rest: true }); // the kernel names them
+    }
     if (s.lane) items.push(null);
     if (items.length) out[name] = items;
   }

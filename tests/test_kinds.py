@@ -420,3 +420,16 @@ def test_swapping_data_drops_named_axes_that_are_gone():
     with pytest.raises(aw.ColumnError, match="none of the axes"):
         w.data = pd.DataFrame({"z": [1.0]})
     assert w.axes == ["a"] and w.count == 3  # nothing lost when the swap is refused
+
+
+def test_the_shared_band_of_rare_labels_can_be_picked_whole():
+    labels = [f"id{i:03d}" for i in range(90)]
+    rng = np.random.default_rng(9)
+    df = pd.DataFrame({"id": rng.choice(labels, 5000), "x": rng.normal(size=5000)})
+    w = aw.AxesWidget(df)
+    rest = w.column("id").labels[CATEGORY_BAND_LIMIT:]
+    w.ranges = {"id": [{"rest": True}]}
+    assert w.ranges == {"id": [lab for lab in w.column("id").labels if lab in set(rest)]}
+    np.testing.assert_array_equal(w.mask, df["id"].isin(rest).to_numpy())  # reference: Series.isin
+    with pytest.raises(traitlets.TraitError, match="the only dict item is"):
+        w.ranges = {"id": [{"others": 1}]}

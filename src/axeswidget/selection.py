@@ -7,6 +7,8 @@ A selection is ``{axis name: [item, ...]}``. An item is
   Datetime ends are ISO 8601 strings (timezone offset included for tz-aware axes); timedelta ends
   are seconds;
 * a label (str) — a category on a category or boolean axis (``"True"``/``"False"`` for booleans);
+  ``{"rest": True}`` stands for every label beyond the axis's bands (the page's shared band) and is
+  replaced by those labels;
 * ``None`` — the axis's missing-values lane.
 
 Items on one axis combine with OR, axes combine with AND. An axis without items does not filter.
@@ -25,7 +27,7 @@ from numbers import Real
 import numpy as np
 import pandas as pd
 
-from .encode import Column
+from .encode import CATEGORY_BAND_LIMIT, Column
 
 Ranges = dict[str, list]
 
@@ -128,6 +130,13 @@ def normalise_items(items, col: Column) -> list:
     for item in items:
         if item is None:
             lane = True
+        elif categorical and isinstance(item, Mapping):
+            # {"rest": True}: every label beyond the axis's bands (what the page's shared band holds)
+            if dict(item) != {"rest": True}:
+                raise SelectionError(
+                    f"selection on {axis!r}: the only dict item is {{'rest': True}}, got {item!r}"
+                )
+            picked.update(col.labels[CATEGORY_BAND_LIMIT:])
         elif categorical:
             if _is_pair(item):
                 raise SelectionError(

@@ -127,3 +127,23 @@ def test_two_ranges_on_one_axis_and_one_on_another_then_delete_one(show, fleet):
     assert len(bands) == 2 and not [b for b in s.layout()["bands"] if b["name"] == "head_m"]
     assert int(s.root().get_attribute("data-count")) == w.count
     assert not s.errors
+
+
+def test_clicking_the_shared_band_of_rare_labels_selects_them_exactly(show):
+    from axeswidget.encode import CATEGORY_BAND_LIMIT
+
+    labels = [f"id{i:03d}" for i in range(90)]
+    rng = np.random.default_rng(9)
+    df = pd.DataFrame({"id": rng.choice(labels, 5000), "x": rng.normal(size=5000)})
+    w = aw.AxesWidget(df)
+    s = show(w)
+    lay = s.layout()
+    i = [a["name"] for a in lay["axes"]].index("id")
+    band = lay["categoryBands"][i][-1]
+    assert band["label"].endswith("other labels")
+    s.page.mouse.click(s.x_of("id"), s.canvas_box()["y"] + (band["y0"] + band["y1"]) / 2)
+    s.round_trip()
+    rest = w.column("id").labels[CATEGORY_BAND_LIMIT:]
+    np.testing.assert_array_equal(w.mask, df["id"].isin(rest).to_numpy())  # reference: Series.isin
+    assert int(s.root().get_attribute("data-count")) == w.count
+    assert s.layout()["picked"]["id"]["bands"] == [CATEGORY_BAND_LIMIT]  # still drawn as picked
