@@ -68,14 +68,15 @@ function endToUnits(a: AxisData, v: number | string | null, side: 0 | 1): number
   return Number(v);
 }
 
-function unitsToEnd(a: AxisData, v: number): number | string | null {
+/** A range end in the trait's form; integer axes round inward (lo up, hi down) to whole values. */
+function unitsToEnd(a: AxisData, v: number, side: 0 | 1): number | string | null {
   if (!isFinite(v)) return null;
   if (a.kind === "datetime") {
     const iso = new Date(Math.round(v / 1e6)).toISOString();
     return a.tz ? iso : iso.slice(0, -1);
   }
   if (a.kind === "timedelta") return Math.round(v / 1e6) / 1e3;
-  if (a.kind === "integer") return Math.round(v);
+  if (a.kind === "integer") return side === 0 ? Math.ceil(v - 1e-9) : Math.floor(v + 1e-9);
   return v;
 }
 
@@ -119,7 +120,10 @@ export function toTrait(table: Table, sel: Sel, previous: TraitRanges | null | u
       // an end dragged onto the end of an axis that holds ±inf values takes them in (open end)
       const l = lo <= a.lo && a.inf[0] > 0 ? -Infinity : lo;
       const h = hi >= a.hi && a.inf[1] > 0 ? Infinity : hi;
-      items.push([unitsToEnd(a, l), unitsToEnd(a, h)]);
+      let pair: [number | string | null, number | string | null] = [unitsToEnd(a, l, 0), unitsToEnd(a, h, 1)];
+      // a range between two whole values of an integer axis holds none: keep it as drawn
+      if (typeof pair[0] === "number" && typeof pair[1] === "number" && pair[0] > pair[1]) pair = [l, h];
+      items.push(pair);
     }
     for (const b of s.bands) {
       if (a.labels && b < a.labels.length) items.push(a.labels[b]);

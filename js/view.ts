@@ -221,14 +221,14 @@ export class View {
     this.dragging = !final;
     this.preview = previewMask(this.table, s);
     this.invalidate(true);
-    if (final && this.model.get("_standalone")) {
-      // no kernel behind this page (an exported file): the page's own mask is the answer
-      this.kernelMask = this.preview.mask;
-      this.kernelCount = this.preview.count;
-      this.preview = null;
-    }
     if (final) {
       this.sync();
+      if (this.model.get("_standalone") && this.preview) {
+        // no kernel behind this page (an exported file): the page's own mask is the answer
+        this.kernelMask = this.preview.mask;
+        this.kernelCount = this.preview.count;
+        this.preview = null;
+      }
       return;
     }
     const wait = SYNC_MS - (performance.now() - this.lastSync);
@@ -285,8 +285,15 @@ export class View {
       if (!this.dragging && this.model.get("answered_seq") >= this.seqSent) this.adoptKernel();
       return;
     }
+    const value = toTrait(this.table, this.sel, sent);
+    if (!this.dragging) {
+      // draw what is sent: ends as the kernel will read them (whole values on integer axes, ms on dates)
+      this.sel = fromTrait(this.table, value);
+      this.preview = previewMask(this.table, this.sel);
+      this.invalidate(true);
+    }
     this.seqSent = Math.max(this.seqSent, this.model.get("edit_seq") ?? 0) + 1;
-    this.model.set("ranges", toTrait(this.table, this.sel, sent));
+    this.model.set("ranges", value);
     this.model.set("edit_seq", this.seqSent);
     this.model.set("dragging", this.dragging);
     this.model.save_changes();

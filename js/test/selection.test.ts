@@ -84,3 +84,11 @@ test("category bands stack bottom to top with heights growing with counts", () =
   assert.ok(sc.bands[1].y1 - sc.bands[1].y0 > sc.bands[0].y1 - sc.bands[0].y0);
   assert.equal(sc.bandAt((sc.bands[1].y0 + sc.bands[1].y1) / 2), 1);
 });
+
+test("integer axes round range ends inward to whole values", () => {
+  const codes = new Uint16Array([0, CODE_MAX]);
+  const t = decodeTable({ n: 2, columns: [{ name: "y", kind: "integer", lo: 2008, hi: 2025, missing: 0, codes: new DataView(codes.buffer) }] });
+  assert.deepEqual(toTrait(t, { y: sel([[2010.4, 2013.6]]) }, {}), { y: [[2011, 2013]] });
+  // no whole value inside: the range is kept as drawn (it selects nothing)
+  assert.deepEqual(toTrait(t, { y: sel([[2010.2, 2010.8]]) }, {}), { y: [[2010.2, 2010.8]] });
+});

@@ -147,3 +147,17 @@ def test_clicking_the_shared_band_of_rare_labels_selects_them_exactly(show):
     np.testing.assert_array_equal(w.mask, df["id"].isin(rest).to_numpy())  # reference: Series.isin
     assert int(s.root().get_attribute("data-count")) == w.count
     assert s.layout()["picked"]["id"]["bands"] == [CATEGORY_BAND_LIMIT]  # still drawn as picked
+
+
+def test_integer_axis_ranges_snap_to_whole_values_and_are_drawn_as_sent(show, fleet):
+    w = aw.AxesWidget(fleet, axes=["install_year", "efficiency_pct"])
+    s = show(w)
+    s.drag("install_year", 2010.4, 2015.6)
+    s.round_trip()
+    ((lo, hi),) = w.ranges["install_year"]
+    assert (lo, hi) == (2011.0, 2015.0)  # rounded inward: the whole years inside the dragged band
+    band = next(b for b in s.layout()["bands"] if b["name"] == "install_year")
+    assert abs(band["yBottom"] - (s.y_of("install_year", 2011) - s.canvas_box()["y"])) < 0.5
+    assert abs(band["yTop"] - (s.y_of("install_year", 2015) - s.canvas_box()["y"])) < 0.5
+    np.testing.assert_array_equal(w.mask, fleet["install_year"].between(2011, 2015).to_numpy())  # reference
+    assert int(s.root().get_attribute("data-count")) == w.count
