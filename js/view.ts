@@ -3,11 +3,11 @@
 import { PairCache, rankCorrelation } from "./association";
 import { attachBrush } from "./brush";
 import { colouring, hexToRgb, toCss, viridis, type Colouring } from "./colour";
-import { codeToValue, CODE_MISSING, decodeTable, isCategorical, rowSpread, unpackMask, type RawTable, type Table } from "./data";
+import { codeToValue, CODE_MAX, CODE_MISSING, decodeTable, isCategorical, rowSpread, unpackMask, type RawTable, type Table } from "./data";
 import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, uprightText, type Theme } from "./draw";
 import { LinePainter, type Mode, type PaintResult } from "./paint";
 import { computeLayout, type Layout } from "./layout";
-import type { AxisScale } from "./scales";
+import { formatValue, type AxisScale } from "./scales";
 import { fromTrait, previewMask, selKey, toTrait, type Sel, type TraitRanges } from "./selection";
 
 /** The slice of the anywidget model API that the view uses (a stand-in can provide it in tests). */
@@ -59,6 +59,8 @@ export class View {
   private hover = -1;
   private drawn = 0;
   private waiters: ((ms: number) => void)[] = [];
+  /** last pointer position over the chart (logical coordinates), to place the values box */
+  private pointer = { x: 0, y: 0 };
 
   constructor(
     private model: Model,
@@ -514,6 +516,7 @@ export class View {
   }
 
   private hoverAt(x: number, y: number) {
+    if (x >= 0) this.pointer = { x, y };
     const row = this.nearestRow(x, y);
     if (row === this.hover) return;
     this.hover = row;
@@ -563,16 +566,27 @@ export class View {
       else if (isCategorical(axis)) text = axis.labels && c < axis.labels.length ? axis.labels[c] : "(other)";
       else {
         const sc = this.scales().find((x) => x.axis === axis)!;
-        text = sc.format(codeToValue(axis, c));
+        const v = codeToValue(axis, c);
+        if (axis.kind === "number" && !axis.log) {
+          // as many decimals as the quantisation step can tell apart
+          const step = (axis.hi - axis.lo) / CODE_MAX;
+          const decimals = step > 0 ? Math.min(6, Math.max(0, Math.floor(-Math.log10(step * 2)))) : 3;
+          text = formatValue(Number(v.toFixed(decimals)));
+        } else text = sc.format(v);
       }
       lines.push(`${s.name}: ${text}`);
     }
     this.tip.textContent = lines.join("\n");
     this.tip.style.display = "block";
-    const x = layout.slots[Math.min(1, layout.slots.length - 1)].x;
-    const left = Math.max(4, Math.min(layout.width - 180, x));
-    this.tip.style.left = `${layout.horizontal ? layout.top : left}px`;
-    this.tip.style.top = `${layout.horizontal ? left : layout.top}px`;
+    // beside the pointer, on the side with more room, kept inside the chart
+    const box = { w: this.tip.offsetWidth, h: this.tip.offsetHeight };
+    const px = layout.horizontal ? this.pointer.y : this.pointer.x;
+    const py = layout.horizontal ? this.pointer.x : this.pointer.y;
+    const { w: pw, h: ph } = this.physicalSize();
+    const left = px + 16 + box.w <= pw ? px + 16 : Math.max(4, px - 16 - box.w);
+    const top = Math.min(Math.max(4, py - box.h / 2), Math.max(4, ph - box.h - 4));
+    this.tip.style.left = `${left}px`;
+    this.tip.style.top = `${top}px`;
   }
 
   private updateStatus(layout: Layout) {

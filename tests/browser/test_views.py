@@ -103,6 +103,7 @@ def test_hover_shows_values_and_click_pins_the_row(show):
     assert s.layout()["hover"] == 1
     tip = s.page.locator(".axw-tip").inner_text()
     assert "label: high" in tip and "row 1" in tip
+    assert "a: 10\n" in tip and "b: 10\n" in tip  # the row's values (reference: df.loc[1])
     s.page.mouse.click(x, y)
     s.settle()
     s.push_to_kernel()
