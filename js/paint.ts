@@ -14,7 +14,9 @@
 import { type Colouring, type RGB } from "./colour";
 import { CODE_MISSING, isCategorical, type Table } from "./data";
 import type { Layout } from "./layout";
+import { bundleCentres, linesDrawer, type LinesSetup } from "./linespass";
 import { Accumulator, gainForOpacity } from "./raster";
+import { WorkerPool } from "./workers";
 import type { AxisScale } from "./scales";
 
 export type Mode = "lines" | "density";
@@ -43,6 +45,8 @@ export interface PaintJob {
 
 export interface PaintResult {
   ms: number;
+  /** the lines were drawn by Web Workers (else on the page) */
+  workers: boolean;
   /** per axis in the layout: selected-row counts in HIST_BINS bins along the axis (numeric axes) */
   histSelected: Uint32Array[];
   histAll: Uint32Array[];
@@ -66,6 +70,8 @@ interface Pass {
 export const BINS = 128;
 export const HIST_BINS = 64;
 const CHUNK_MS = 14;
+/** Tables with at least this many cells (rows x axes) are drawn by Web Workers in lines mode. */
+const WORKER_CELLS = 400_000;
 const SHOW_MS = 180;
 
 const yieldToPage = (() => {
@@ -87,6 +93,8 @@ export class LinePainter {
   private fad: Accumulator | null = null;
   private image: ImageData | null = null;
   private turned: ImageData | null = null;
+  private pool: WorkerPool | null = null;
+  private usedWorkers = false;
 
   constructor(
     private canvas: HTMLCanvasElement,
@@ -107,6 +115,7 @@ export class LinePainter {
     this.token++;
   }
 
+
   private buffers(w: number, h: number) {
     if (!this.sel || this.sel.width !== w || this.sel.height !== h) {
       this.sel = new Accumulator(w, h);
@@ -121,6 +130,7 @@ export class LinePainter {
 
   private async run(job: PaintJob, token: number) {
     const t0 = performance.now();
+    this.usedWorkers = false;
     const W = Math.max(1, Math.round(job.layout.width * job.dpr));
     const H = Math.max(1, Math.round(job.layout.height * job.dpr));
     const { sel, fad, image } = this.buffers(W, H);
@@ -182,105 +192,84 @@ export class LinePainter {
     }
     show();
     this.onProgress(null);
-    this.onDone({ ms: performance.now() - t0, histSelected, histAll });
+    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers });
   }
 
   private async lines(pass: Pass): Promise<boolean> {
-    const { job, codes, rowY, xs, sel, fad, histSelected, histAll, chunked } = pass;
+    const { job, codes, xs, sel, fad, histSelected, histAll, chunked } = pass;
     const k = xs.length;
-    const { mask, colouring, bundle } = job;
-    const group = colouring.group;
-    const palette = colouring.palette;
-    // bundling: a mid point per gap, pulled toward the mean mid point of the row's category
-    let centres: Float64Array | null = null;
-    if (bundle) {
-      const bcodes = codes[bundle.axis];
+    const setup: LinesSetup = {
+      codes,
+      spread: job.spread,
+      bases: job.place.map((p) => p.base),
+      heights: job.place.map((p) => p.height),
+      xs,
+      dpr: job.dpr,
+      mask: job.mask,
+      group: job.colouring.group,
+      palette: job.colouring.palette,
+      faded: job.faded,
+      curves: job.curves,
+      bundle: null,
+    };
+    if (job.bundle) {
+      // bundling: a mid point per gap, pulled toward the mean mid point of the row's category
       const sums = new Float64Array((k - 1) * 64);
       const counts = new Float64Array(64);
-      const ok = await chunked((i0, i1) => {
-        for (let i = i0; i < i1; i++) {
-          const g = Math.min(63, bcodes[i] === CODE_MISSING ? 63 : bcodes[i]);
-          counts[g]++;
-          for (let a = 0; a + 1 < k; a++) sums[a * 64 + g] += (rowY(a, i) + rowY(a + 1, i)) / 2;
-        }
-      }, [0, 0.2]);
+      const axis = job.bundle.axis;
+      const ok = await chunked((i0, i1) => bundleCentres(setup, axis, i0, i1, sums, counts), [0, 0.2]);
       if (!ok) return false;
-      centres = sums;
-      for (let a = 0; a + 1 < k; a++) for (let g = 0; g < 64; g++) if (counts[g]) centres[a * 64 + g] /= counts[g];
+      for (let a = 0; a + 1 < k; a++) for (let g = 0; g < 64; g++) if (counts[g]) sums[a * 64 + g] /= counts[g];
+      setup.bundle = { axis, strength: job.bundle.strength, centres: sums };
     }
-    const axesOut = bundle ? 2 * k - 1 : k;
-    const place = job.place;
-    const bases = place.map((p) => p.base);
-    const heights = place.map((p) => p.height);
-    const spread = job.spread;
-    const dpr = job.dpr;
-    const xsOut = new Float32Array(axesOut);
-    for (let a = 0; a < k; a++) {
-      xsOut[bundle ? 2 * a : a] = xs[a];
-      if (bundle && a + 1 < k) xsOut[2 * a + 1] = (xs[a] + xs[a + 1]) / 2;
+    const share: [number, number] = [job.bundle ? 0.2 : 0, 1];
+    const pool = this.workerPool(job.table.n * k);
+    if (pool) {
+      const token = this.token;
+      const columns = job.layout.slots.map((s) => job.table.axes.findIndex((a) => a.name === s.name));
+      pool.ensureData(job.table, job.table.axes.map((a) => a.codes), job.spread);
+      const { codes: _c, spread: _s, ...rest } = setup;
+      const results = await pool.run(
+        { ...rest, columns },
+        sel.width,
+        sel.height,
+        job.table.n,
+        (f) => {
+          if (token === this.token) this.onProgress(share[0] + (share[1] - share[0]) * f);
+        },
+        job.place,
+      );
+      if (token !== this.token) return false;
+      if (results) {
+        this.usedWorkers = true;
+        for (const r of results) {
+          sel.merge(r.sel);
+          fad.merge(r.fad);
+          r.histAll.forEach((h, a) => h.forEach((v, b) => (histAll[a][b] += v)));
+          r.histSelected.forEach((h, a) => h.forEach((v, b) => (histSelected[a][b] += v)));
+        }
+        return true;
+      }
+      // a worker failed: draw here instead
     }
-    const s = bundle ? bundle.strength : 0;
-    let ys = new Float32Array(0);
-    let colours = new Float32Array(0);
-    let filterSel = new Uint8Array(0);
-    let filterFad = new Uint8Array(0);
-    const single: [number, number, number] = palette[0];
-    return chunked((i0, i1) => {
-      const rows = i1 - i0;
-      if (ys.length < rows * axesOut) {
-        ys = new Float32Array(rows * axesOut);
-        colours = new Float32Array(rows * 3);
-        filterSel = new Uint8Array(rows);
-        filterFad = new Uint8Array(rows);
-      }
-      let anyFaded = false;
-      const step = bundle ? 2 : 1;
-      for (let r = 0; r < rows; r++) {
-        const on = mask ? mask[i0 + r] : 1;
-        filterSel[r] = on;
-        filterFad[r] = on ? 0 : 1;
-        if (!on) anyFaded = true;
-      }
-      // column by column: one axis's codes, placement tables and histograms stay in cache
-      for (let a = 0; a < k; a++) {
-        const col = codes[a];
-        const base = bases[a];
-        const height = heights[a];
-        const all = histAll[a];
-        const chosen = histSelected[a];
-        let at = a * step;
-        for (let r = 0; r < rows; r++, at += axesOut) {
-          const i = i0 + r;
-          const c = col[i];
-          ys[at] = (base[c] + spread[i] * height[c]) * dpr;
-          if (c !== CODE_MISSING) {
-            const hb = c >> 10;
-            all[hb]++;
-            if (filterSel[r]) chosen[hb]++;
-          }
-        }
-      }
-      for (let r = 0; r < rows; r++) {
-        const i = i0 + r;
-        const rowBase = r * axesOut;
-        if (bundle && centres) {
-          const g = Math.min(63, codes[bundle.axis][i] === CODE_MISSING ? 63 : codes[bundle.axis][i]);
-          for (let a = 0; a + 1 < k; a++) {
-            const mid = (ys[rowBase + 2 * a] + ys[rowBase + 2 * a + 2]) / 2;
-            ys[rowBase + 2 * a + 1] = (1 - s) * mid + s * centres[a * 64 + g];
-          }
-        }
-        if (group) {
-          const p = palette[group[i]];
-          colours[3 * r] = p[0];
-          colours[3 * r + 1] = p[1];
-          colours[3 * r + 2] = p[2];
-        }
-      }
-      const curve = job.curves || !!bundle;
-      if (anyFaded) fad.polylines(xsOut, ys, rows, axesOut, job.faded, 1, filterFad, curve);
-      sel.polylines(xsOut, ys, rows, axesOut, group ? colours : single, 1, filterSel, curve);
-    }, [bundle ? 0.2 : 0, 1]);
+    return chunked(linesDrawer(setup, sel, fad, histAll, histSelected), share);
+  }
+
+  /** The worker pool, when it is worth using for this much work and workers can run here. */
+  private workerPool(cells: number): WorkerPool | null {
+    if (cells < WORKER_CELLS) return null;
+    if (!this.pool) {
+      const cores = typeof navigator !== "undefined" ? navigator.hardwareConcurrency || 2 : 2;
+      this.pool = new WorkerPool(Math.max(2, Math.min(4, cores)));
+    }
+    return this.pool.size ? this.pool : null;
+  }
+
+  /** Stop the workers (the view is going away). */
+  dispose() {
+    this.cancel();
+    this.pool?.dispose();
+    this.pool = null;
   }
 
   private async density(pass: Pass): Promise<boolean> {

@@ -51,6 +51,15 @@ function unit(v: number): number {
   return v > 0 ? (v < 1 ? v : 1) : 0;
 }
 
+/** What an Accumulator holds, as transferable arrays (see Accumulator.state / merge). */
+export interface AccumulatorState {
+  width: number;
+  height: number;
+  pend: Float32Array | null;
+  colour: [number, number, number];
+  tot: Float32Array | null;
+}
+
 export class Accumulator {
   /** Visible size in device pixels. */
   readonly width: number;
@@ -314,6 +323,45 @@ export class Accumulator {
   private totArray(): Float32Array {
     this.totUsed = true;
     return this.tot ?? (this.tot = new Float32Array(4 * this.pend.length));
+  }
+
+  /**
+   * Everything drawn so far, as plain arrays that can cross to another thread: the pending
+   * weights with their colour, and the colour totals (or null). See `merge`.
+   */
+  state(): AccumulatorState {
+    return {
+      width: this.width,
+      height: this.height,
+      pend: this.pendSteps > 0 ? this.pend : null,
+      colour: [this.pr, this.pg, this.pb],
+      tot: this.totUsed ? this.tot : null,
+    };
+  }
+
+  /** Add what another accumulator of the same size drew (its `state()`) to this one. */
+  merge(other: AccumulatorState): void {
+    if (other.width !== this.width || other.height !== this.height) {
+      throw new RangeError(`merge: ${other.width}×${other.height} into ${this.width}×${this.height}`);
+    }
+    if (!other.pend && !other.tot) return;
+    if (this.pendSteps > 0) this.flush();
+    const tot = this.totArray();
+    if (other.tot) for (let q = 0, n = tot.length; q < n; q++) tot[q] += other.tot[q];
+    if (other.pend) {
+      const [r, g, b] = other.colour;
+      const pend = other.pend;
+      for (let p = 0, n = pend.length; p < n; p++) {
+        const w = pend[p];
+        if (w !== 0) {
+          const q = 4 * p;
+          tot[q] += w;
+          tot[q + 1] += r * w;
+          tot[q + 2] += g * w;
+          tot[q + 3] += b * w;
+        }
+      }
+    }
   }
 
   /** Move the contents of `pend` into `tot` and empty `pend`. */

@@ -466,6 +466,7 @@ export class View {
     this.drawn++;
     this.root.dataset.drawn = String(this.drawn);
     this.root.dataset.drawMs = r.ms.toFixed(1);
+    this.root.dataset.drawnBy = r.workers ? "workers" : "page";
     this.invalidate(false);
     for (const w of this.waiters.splice(0)) w(r.ms);
   }
@@ -622,7 +623,7 @@ export class View {
   }
 
   destroy() {
-    this.painter.cancel();
+    this.painter.dispose();
     cancelAnimationFrame(this.frame);
     window.clearTimeout(this.syncTimer);
     for (const f of this.cleanup) f();

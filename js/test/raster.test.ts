@@ -584,3 +584,28 @@ test('clear empties the buffer, including per-pixel colour', () => {
   assert.ok(Math.abs(acc.weightAt(10, 5) - 2) < 1e-6);
   assert.deepEqual(acc.colourAt(10, 5)!.map((v) => Math.round(v * 1e6) / 1e6), [0, 0.5, 0.5]);
 });
+
+test("merging the states of two accumulators equals drawing everything into one", () => {
+  const W = 64;
+  const H = 48;
+  const whole = new Accumulator(W, H);
+  const a = new Accumulator(W, H);
+  const b = new Accumulator(W, H);
+  const segs: [number, number, number, number, number, number, number][] = [];
+  let seed = 7;
+  const rnd = () => ((seed = (seed * 16807) % 2147483647) / 2147483647);
+  for (let i = 0; i < 200; i++) segs.push([rnd() * W, rnd() * H, rnd() * W, rnd() * H, i % 3 === 0 ? 1 : 0, 0.5, i % 2]);
+  segs.forEach(([x0, y0, x1, y1, r, g, bl], i) => {
+    whole.segment(x0, y0, x1, y1, r, g, bl);
+    (i < 120 ? a : b).segment(x0, y0, x1, y1, r, g, bl);
+  });
+  a.merge(b.state());
+  const one = new Uint8ClampedArray(W * H * 4);
+  const two = new Uint8ClampedArray(W * H * 4);
+  whole.resolve(one, 0.4);
+  a.resolve(two, 0.4);
+  let worst = 0;
+  for (let i = 0; i < one.length; i++) worst = Math.max(worst, Math.abs(one[i] - two[i]));
+  assert.ok(worst <= 1, `largest channel difference ${worst}`); // float32 sums in another order
+  assert.throws(() => a.merge(new Accumulator(W + 1, H).state()), RangeError);
+});

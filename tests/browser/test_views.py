@@ -151,3 +151,23 @@ def test_horizontal_orientation_brushes_along_the_page(show, fleet):
     assert 18 < lo < 22 and 43 < hi < 47
     np.testing.assert_array_equal(w.mask, fleet["head_m"].between(lo, hi).to_numpy())  # reference: between
     assert int(s.root().get_attribute("data-count")) == w.count
+
+
+def test_large_tables_are_drawn_by_workers_and_without_workers_on_the_page(show):
+    rng = np.random.default_rng(2)
+    df = pd.DataFrame(rng.normal(size=(60_000, 8)), columns=list("abcdefgh"))
+    w = aw.AxesWidget(df, view_mode="lines", ranges={"a": [[-1, 1]]})
+    s = show(w)
+    s.page.wait_for_function(DRAWN, timeout=60_000)
+    assert s.root().get_attribute("data-drawn-by") == "workers"
+    with_workers = s.page.evaluate(CANVAS_STATS)
+    # the same chart where the page cannot start workers: drawn on the page, the same picture
+    s2 = show(w)
+    s2.page.add_init_script("window.Worker = undefined;")
+    s2.page.reload()
+    s2.page.wait_for_function("() => window.__ready === true")
+    s2.page.wait_for_function(DRAWN, timeout=60_000)
+    assert s2.root().get_attribute("data-drawn-by") == "page"
+    on_page = s2.page.evaluate(CANVAS_STATS)
+    assert abs(on_page["painted"] - with_workers["painted"]) < 0.002  # the same pixels are covered
+    assert not s.errors and not s2.errors
