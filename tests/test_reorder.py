@@ -90,3 +90,21 @@ def test_association_for_category_axes_uses_mutual_information():
     ref = normalized_mutual_info_score(fleet["site"][ok].cat.codes, bins, average_method="geometric")
     assert mi.loc["site", "sand_ppm"] == pytest.approx(ref, abs=1e-9)
     assert mi.loc["site", "sand_ppm"] > mi.loc["site", "water_temp_c"] * 0.5
+
+
+def test_axis_domains_of_iris_match_the_published_summary(iris):
+    w = aw.AxesWidget(iris)
+    # UCI iris.names summary statistics: min/max per measurement (cm)
+    published = {
+        "sepal length (cm)": (4.3, 7.9),
+        "sepal width (cm)": (2.0, 4.4),
+        "petal length (cm)": (1.0, 6.9),
+        "petal width (cm)": (0.1, 2.5),
+    }
+    for name, (lo, hi) in published.items():
+        col = w.column(name)
+        assert (col.lo, col.hi) == pytest.approx((lo, hi))
+    # UCI iris.names means 5.84, 3.05, 3.76, 1.20: the mean of the selected rows with no range
+    # set is the mean of all rows (the published means are those of the whole data set)
+    means = w.selected.mean().round(2).tolist()
+    assert means == pytest.approx([5.84, 3.05, 3.76, 1.20], abs=0.011)
