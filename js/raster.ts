@@ -51,6 +51,21 @@ function unit(v: number): number {
   return v > 0 ? (v < 1 ? v : 1) : 0;
 }
 
+/** Add weights of one colour into interleaved w, r·w, g·w, b·w totals; `empty` zeroes the weights. */
+function addColoured(tot: Float32Array, pend: Float32Array, r: number, g: number, b: number, empty: boolean) {
+  for (let p = 0, n = pend.length; p < n; p++) {
+    const w = pend[p];
+    if (w !== 0) {
+      const q = 4 * p;
+      tot[q] += w;
+      tot[q + 1] += r * w;
+      tot[q + 2] += g * w;
+      tot[q + 3] += b * w;
+      if (empty) pend[p] = 0;
+    }
+  }
+}
+
 /** What an Accumulator holds, as transferable arrays (see Accumulator.state / merge). */
 export interface AccumulatorState {
   width: number;
@@ -348,40 +363,12 @@ export class Accumulator {
     if (this.pendSteps > 0) this.flush();
     const tot = this.totArray();
     if (other.tot) for (let q = 0, n = tot.length; q < n; q++) tot[q] += other.tot[q];
-    if (other.pend) {
-      const [r, g, b] = other.colour;
-      const pend = other.pend;
-      for (let p = 0, n = pend.length; p < n; p++) {
-        const w = pend[p];
-        if (w !== 0) {
-          const q = 4 * p;
-          tot[q] += w;
-          tot[q + 1] += r * w;
-          tot[q + 2] += g * w;
-          tot[q + 3] += b * w;
-        }
-      }
-    }
+    if (other.pend) addColoured(tot, other.pend, other.colour[0], other.colour[1], other.colour[2], false);
   }
 
   /** Move the contents of `pend` into `tot` and empty `pend`. */
   private flush(): void {
-    const pend = this.pend;
-    const tot = this.totArray();
-    const r = this.pr;
-    const g = this.pg;
-    const b = this.pb;
-    for (let p = 0, n = pend.length; p < n; p++) {
-      const w = pend[p];
-      if (w !== 0) {
-        const q = 4 * p;
-        tot[q] += w;
-        tot[q + 1] += r * w;
-        tot[q + 2] += g * w;
-        tot[q + 3] += b * w;
-        pend[p] = 0;
-      }
-    }
+    addColoured(this.totArray(), this.pend, this.pr, this.pg, this.pb, true);
     this.pendSteps = 0;
   }
 

@@ -207,36 +207,36 @@ class AxesWidget(anywidget.AnyWidget):
         """Index label of the row pinned on the page (click a line), or None."""
         return None if self.pinned < 0 else self._frame.index[self.pinned]
 
-    @t.validate("flipped")
-    def _check_flipped(self, proposal):
+    def _axis_list(self, names, option: str, check=None) -> list[str]:
+        """Axis names without repeats; unknown names (or ones ``check`` refuses) raise a TraitError."""
         out = []
-        for axis in proposal["value"]:
-            if axis not in self._columns:
+        for axis in names:
+            col = self._columns.get(axis)
+            if col is None:
                 raise t.TraitError(
-                    f"unknown axis {axis!r} in flipped; the axes are: {', '.join(self._columns)}"
+                    f"unknown axis {axis!r} in {option}; the axes are: {', '.join(self._columns)}"
                 )
+            if check:
+                check(axis, col)
             if axis not in out:
                 out.append(axis)
         return out
 
+    @t.validate("flipped")
+    def _check_flipped(self, proposal):
+        return self._axis_list(proposal["value"], "flipped")
+
     @t.validate("log_axes")
     def _check_log(self, proposal):
-        out = []
-        for axis in proposal["value"]:
-            col = self._columns.get(axis)
-            if col is None:
-                raise t.TraitError(
-                    f"unknown axis {axis!r} in log_axes; the axes are: {', '.join(self._columns)}"
-                )
+        def positive_numbers(axis, col):
             if col.kind not in ("number", "integer"):
                 raise t.TraitError(f"axis {axis!r} is a {col.kind} axis; a log scale needs numbers")
             if not col.lo > 0:
                 raise t.TraitError(
                     f"axis {axis!r} has values <= 0 (smallest {col.lo:g}); a log scale needs positive data"
                 )
-            if axis not in out:
-                out.append(axis)
-        return out
+
+        return self._axis_list(proposal["value"], "log_axes", positive_numbers)
 
     @t.observe("log_axes")
     def _on_log(self, change):

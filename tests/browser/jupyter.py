@@ -126,21 +126,13 @@ class JupyterServer:
         shutil.rmtree(self.private, ignore_errors=True)
 
 
-class LabNotebook:
-    """A notebook open in JupyterLab, with helpers to run cells and read outputs."""
+class NotebookPage:
+    """A notebook open in a Jupyter front end: run cells, read outputs (cells found by ``CELLS``)."""
 
-    def __init__(self, page, server: JupyterServer, name: str):
-        self.page = page
-        page.goto(server.url(f"lab/tree/{name}?reset"))
-        page.wait_for_selector(".jp-NotebookPanel .jp-Cell", timeout=60_000)
-        page.wait_for_function(
-            "() => [...document.querySelectorAll('.jp-StatusBar-TextItem')]"
-            ".some(e => /\\| Idle/.test(e.textContent))",
-            timeout=60_000,
-        )
+    CELLS = ".jp-NotebookPanel .jp-Notebook .jp-Cell"
 
     def cell(self, i: int):
-        return self.page.locator(".jp-NotebookPanel .jp-Notebook .jp-Cell").nth(i)
+        return self.page.locator(self.CELLS).nth(i)
 
     def run(self, i: int, timeout: float = 60_000):
         cell = self.cell(i)
@@ -153,3 +145,17 @@ class LabNotebook:
 
     def output_text(self, i: int) -> str:
         return self.cell(i).locator(".jp-OutputArea").inner_text()
+
+
+class LabNotebook(NotebookPage):
+    """A notebook open in JupyterLab."""
+
+    def __init__(self, page, server: JupyterServer, name: str):
+        self.page = page
+        page.goto(server.url(f"lab/tree/{name}?reset"))
+        page.wait_for_selector(".jp-NotebookPanel .jp-Cell", timeout=60_000)
+        page.wait_for_function(
+            "() => [...document.querySelectorAll('.jp-StatusBar-TextItem')]"
+            ".some(e => /\\| Idle/.test(e.textContent))",
+            timeout=60_000,
+        )

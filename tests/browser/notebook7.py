@@ -9,7 +9,7 @@ before a kernel is attached, so readiness is read from ``window.jupyterapp`` ins
 
 from __future__ import annotations
 
-from tests.browser.jupyter import JupyterServer
+from tests.browser.jupyter import JupyterServer, NotebookPage
 
 
 class NotebookServer(JupyterServer):
@@ -21,8 +21,8 @@ class NotebookServer(JupyterServer):
     EXTRA: list[str] = []  # the default 10 MiB page -> server limit: PNGs must fit under it
 
 
-class Notebook7Page:
-    """A notebook open in Notebook 7, with helpers to run cells and read outputs."""
+class Notebook7Page(NotebookPage):
+    """A notebook open in Notebook 7."""
 
     CELLS = "#main-panel .jp-Notebook .jp-Cell"
 
@@ -38,18 +38,3 @@ class Notebook7Page:
                 return k?.status === 'idle' && k?.connectionStatus === 'connected' && shown === 'idle'; }""",
             timeout=60_000,
         )
-
-    def cell(self, i: int):
-        return self.page.locator(self.CELLS).nth(i)
-
-    def run(self, i: int, timeout: float = 60_000):
-        cell = self.cell(i)
-        cell.locator(".jp-InputArea-editor").click()
-        self.page.keyboard.press("Shift+Enter")
-        prompt = cell.locator(".jp-InputPrompt")
-        self.page.wait_for_function(
-            "(el) => /\\[\\d+\\]/.test(el.textContent)", arg=prompt.element_handle(), timeout=timeout
-        )
-
-    def output_text(self, i: int) -> str:
-        return self.cell(i).locator(".jp-OutputArea").inner_text()
