@@ -44,7 +44,8 @@ function setViews(model: SharingModel, change: (ids: string[]) => string[]) {
 /**
  * The picture of one view: the lines layer, the overlay on top and the status line drawn in the
  * bottom-left corner, on the theme's background, at `scale` x the canvas's CSS size.
- * Sharpest when `scale` equals the device pixel ratio the canvases were drawn at; otherwise resampled.
+ * The view redraws its layers at that scale when it can (view.ts layersAt); otherwise the screen's
+ * canvases are resampled.
  */
 export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob: Blob; width: number; height: number }> {
   if (!(scale > 0 && scale <= PNG_MAX_SCALE)) throw new Error(`scale must be a number in (0, ${PNG_MAX_SCALE}], got ${scale}`);
@@ -71,7 +72,10 @@ export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob
   ctx.fillRect(0, 0, width, height);
   ctx.imageSmoothingEnabled = true;
   ctx.imageSmoothingQuality = "high";
-  for (const layer of layers) if (layer.width > 0 && layer.height > 0) ctx.drawImage(layer, 0, 0, width, height);
+  // drawn afresh at this scale when the view offers it (sharp at any scale), else the screen's canvases
+  const hook = (root as unknown as { __axw?: { layersAt?: (s: number) => Promise<HTMLCanvasElement[]> } }).__axw;
+  const fresh = hook?.layersAt ? await hook.layersAt(scale).catch(() => null) : null;
+  for (const layer of fresh ?? layers) if (layer.width > 0 && layer.height > 0) ctx.drawImage(layer, 0, 0, width, height);
   const status = root.querySelector(".axw-status")?.textContent ?? "";
   if (status) {
     ctx.setTransform(scale, 0, 0, scale, 0, 0);

@@ -5,7 +5,7 @@ import { attachBrush } from "./brush";
 import { colouring, hexToRgb, toCss, viridis, type Colouring } from "./colour";
 import { codeToValue, CODE_MAX, CODE_MISSING, decodeTable, isCategorical, rowSpread, unpackMask, type RawTable, type Table } from "./data";
 import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, uprightText, type Theme } from "./draw";
-import { LinePainter, type Mode, type PaintResult } from "./paint";
+import { LinePainter, type Mode, type PaintJob, type PaintResult } from "./paint";
 import { computeLayout, type Layout } from "./layout";
 import { formatValue, type AxisScale } from "./scales";
 import { fromTrait, previewMask, selKey, toTrait, type Sel, type TraitRanges } from "./selection";
@@ -122,7 +122,7 @@ export class View {
       },
       (r) => this.painted(r),
     );
-    (this.root as any).__axw = { redraw: () => this.redrawTimed() };
+    (this.root as any).__axw = { redraw: () => this.redrawTimed(), layersAt: (scale: number) => this.layersAt(scale) };
     host.appendChild(this.root);
     this.theme = readTheme(host);
     this.loadTable();
@@ -412,53 +412,92 @@ export class View {
     }
   }
 
+  /** What the lines layer should show now, drawn at a pixel ratio. */
+  private job(dpr: number): PaintJob {
+    const layout = this.layout();
+    const mask = this.preview ? this.preview.mask : this.kernelMask;
+    const anyRange = Object.keys(this.sel).length > 0 || (this.kernelMask !== null && this.kernelCount < this.table.n);
+    const shownMask = anyRange ? mask : null;
+    const selected = shownMask ? (this.preview ? this.preview.count : this.kernelCount) : this.table.n;
+    const userOpacity = Number(this.model.get("opacity") ?? 0);
+    const bundleBy = this.model.get("bundle_by") as string;
+    const bundleAxis = bundleBy ? layout.slots.findIndex((s) => s.name === bundleBy) : -1;
+    const strength = Math.min(1, Math.max(0, Number(this.model.get("bundle_strength") ?? 0.5)));
+    return {
+      table: this.table,
+      layout,
+      scales: this.scales(),
+      place: this.placement(),
+      spread: this.spread,
+      mask: shownMask,
+      colouring: this.colouringNow(),
+      faded: hexToRgb(this.theme.faded),
+      opacity: userOpacity > 0 ? Math.min(1, userOpacity) : autoAlpha(selected),
+      mode: this.mode(),
+      curves: !!this.model.get("curves"),
+      bundle: bundleAxis >= 0 ? { axis: bundleAxis, strength } : null,
+      dpr,
+      transpose: layout.horizontal,
+    };
+  }
+
+  /** Axes, ranges, readouts and the highlighted rows, drawn into a canvas at a pixel ratio. */
+  private paintOverlay(canvas: HTMLCanvasElement, dpr: number) {
+    const layout = this.layout();
+    const ctx = canvas.getContext("2d")!;
+    ctx.setTransform(1, 0, 0, 1, 0, 0);
+    ctx.clearRect(0, 0, canvas.width, canvas.height);
+    let restore = () => {};
+    if (layout.horizontal) {
+      ctx.setTransform(0, dpr, dpr, 0, 0, 0);
+      restore = uprightText(ctx, dpr);
+    } else ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+    const hist = this.model.get("histograms") === false ? null : this.hist;
+    drawOverlay(ctx, layout, this.scales(), this.sel, this.theme, this.readouts(), hist);
+    this.drawHighlight(ctx);
+    restore();
+  }
+
   private paint() {
     const layout = this.layout();
     const dpr = window.devicePixelRatio || 1;
-    const mask = this.preview ? this.preview.mask : this.kernelMask;
-    const anyRange = Object.keys(this.sel).length > 0 || (this.kernelMask !== null && this.kernelCount < this.table.n);
     if (this.dirtyLines) {
       this.dirtyLines = false;
-      const shownMask = anyRange ? mask : null;
-      const selected = shownMask ? (this.preview ? this.preview.count : this.kernelCount) : this.table.n;
-      const userOpacity = Number(this.model.get("opacity") ?? 0);
-      const bundleBy = this.model.get("bundle_by") as string;
-      const bundleAxis = bundleBy ? layout.slots.findIndex((s) => s.name === bundleBy) : -1;
-      const mode = this.mode();
-      this.modeButton.textContent = mode === "density" ? "density ⇄ lines" : "lines ⇄ density";
-      this.root.dataset.mode = mode;
-      this.painter.paint({
-        table: this.table,
-        layout,
-        scales: this.scales(),
-        place: this.placement(),
-        spread: this.spread,
-        mask: shownMask,
-        colouring: this.colouringNow(),
-        faded: hexToRgb(this.theme.faded),
-        opacity: userOpacity > 0 ? Math.min(1, userOpacity) : autoAlpha(selected),
-        mode,
-        curves: !!this.model.get("curves"),
-        bundle: bundleAxis >= 0 ? { axis: bundleAxis, strength: Math.min(1, Math.max(0, Number(this.model.get("bundle_strength") ?? 0.5))) } : null,
-        dpr,
-        transpose: layout.horizontal,
-      });
+      const job = this.job(dpr);
+      this.modeButton.textContent = job.mode === "density" ? "density ⇄ lines" : "lines ⇄ density";
+      this.root.dataset.mode = job.mode;
+      this.painter.paint(job);
     }
     if (this.dirtyOverlay) {
-      const ctx = this.overlayCanvas.getContext("2d")!;
-      ctx.setTransform(1, 0, 0, 1, 0, 0);
-      ctx.clearRect(0, 0, this.overlayCanvas.width, this.overlayCanvas.height);
-      let restore = () => {};
-      if (layout.horizontal) {
-        ctx.setTransform(0, dpr, dpr, 0, 0, 0);
-        restore = uprightText(ctx, dpr);
-      } else ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-      drawOverlay(ctx, layout, this.scales(), this.sel, this.theme, this.readouts(), this.model.get("histograms") === false ? null : this.hist);
-      this.drawHighlight(ctx);
-      restore();
+      this.paintOverlay(this.overlayCanvas, dpr);
       this.dirtyOverlay = false;
     }
     this.updateStatus(layout);
+  }
+
+  /**
+   * The chart's layers drawn afresh at `scale` device pixels per CSS pixel (for a sharp PNG at any
+   * scale): the lines layer and the overlay, in drawing order.
+   */
+  async layersAt(scale: number): Promise<HTMLCanvasElement[]> {
+    const { w, h } = this.physicalSize();
+    const make = () => {
+      const c = document.createElement("canvas");
+      c.width = Math.round(w * scale);
+      c.height = Math.round(h * scale);
+      return c;
+    };
+    const lines = make();
+    const overlay = make();
+    await new Promise<void>((resolve) => {
+      const painter: LinePainter = new LinePainter(lines, () => {}, () => {
+        painter.dispose();
+        resolve();
+      });
+      painter.paint(this.job(scale));
+    });
+    this.paintOverlay(overlay, scale);
+    return [lines, overlay];
   }
 
   private painted(r: PaintResult) {
