@@ -526,7 +526,20 @@ export class View {
     let a = -1;
     for (let i = 0; i + 1 < slots.length; i++) if (x >= slots[i].x && x <= slots[i + 1].x) a = i;
     if (a < 0 || y < layout.top - 4 || y > layout.laneY + 8) return -1;
-    const t = (x - slots[a].x) / (slots[a + 1].x - slots[a].x);
+    let t = (x - slots[a].x) / (slots[a + 1].x - slots[a].x);
+    if (this.model.get("curves")) {
+      // the curve is a cubic with control points at half the gap (raster.ts curveSegment): find its
+      // parameter at this x (x(u) = 1.5u(1-u) + u^3 rises from 0 to 1), then its height 3u^2 - 2u^3
+      let lo = 0;
+      let hi = 1;
+      for (let k = 0; k < 24; k++) {
+        const u = (lo + hi) / 2;
+        if (1.5 * u * (1 - u) + u * u * u < t) lo = u;
+        else hi = u;
+      }
+      const u = (lo + hi) / 2;
+      t = u * u * (3 - 2 * u);
+    }
     const place = this.placement();
     const ca = this.table.byName.get(slots[a].name)!.codes;
     const cb = this.table.byName.get(slots[a + 1].name)!.codes;

@@ -171,3 +171,20 @@ def test_large_tables_are_drawn_by_workers_and_without_workers_on_the_page(show)
     on_page = s2.page.evaluate(CANVAS_STATS)
     assert abs(on_page["painted"] - with_workers["painted"]) < 0.002  # the same pixels are covered
     assert not s.errors and not s2.errors
+
+
+def test_hover_follows_curved_lines(show):
+    # two rows that cross: on straight lines the midpoint is shared, on curves they are apart near the axes
+    df = pd.DataFrame({"a": [0.0, 10.0], "b": [10.0, 0.0], "label": ["up", "down"]})
+    w = aw.AxesWidget(df, axes=["a", "b", "label"], curves=True)
+    s = show(w)
+    xa, xb = s.x_of("a"), s.x_of("b")
+    x = xa + 0.2 * (xb - xa)  # a fifth of the way: a curve is still near its start height
+    ya0 = s.y_of("a", 0.0)
+    ya10 = s.y_of("a", 10.0)
+    s.page.mouse.move(x, ya0 + 0.08 * (ya10 - ya0))  # near row 0's level at a
+    s.settle()
+    assert s.layout()["hover"] == 0
+    s.page.mouse.move(x, ya10 + 0.08 * (ya0 - ya10))  # near row 1's level at a
+    s.settle()
+    assert s.layout()["hover"] == 1
