@@ -5,6 +5,9 @@ import type { Accumulator } from "./raster";
 
 export type RGB = [number, number, number];
 
+/** Marginal histograms have this many bins per axis: bin = code >> 10. */
+export const HIST_BINS = 64;
+
 /** Everything needed to draw rows; plain arrays only, so it can be posted to a worker. */
 export interface LinesSetup {
   /** per axis in drawing order: the wire codes of every row */
@@ -46,7 +49,7 @@ export function bundleCentres(setup: LinesSetup, axis: number, i0: number, i1: n
   }
 }
 
-/** A function that draws rows [i0, i1) and counts them into the histograms (64 bins per axis). */
+/** A function that draws rows [i0, i1) and counts them into the histograms (HIST_BINS per axis). */
 export function linesDrawer(
   setup: LinesSetup,
   sel: Accumulator,

@@ -6,7 +6,7 @@
 //               {type: "done", id, sel, fad, histAll, histSelected}
 // A newer job abandons an older one between chunks.
 
-import { linesDrawer, type LinesSetup } from "./linespass";
+import { HIST_BINS, linesDrawer, type LinesSetup } from "./linespass";
 import { Accumulator } from "./raster";
 
 interface Scope {
@@ -41,8 +41,8 @@ async function draw(msg: Job) {
   const sel = new Accumulator(width, height);
   const fad = new Accumulator(width, height);
   const k = columns.length;
-  const histAll = Array.from({ length: k }, () => new Uint32Array(64));
-  const histSelected = Array.from({ length: k }, () => new Uint32Array(64));
+  const histAll = Array.from({ length: k }, () => new Uint32Array(HIST_BINS));
+  const histSelected = Array.from({ length: k }, () => new Uint32Array(HIST_BINS));
   const setup: LinesSetup = { ...msg.setup, codes: columns, spread, bases: placement.bases, heights: placement.heights };
   const drawRows = linesDrawer(setup, sel, fad, histAll, histSelected);
   let chunk = 4096;

@@ -14,7 +14,7 @@
 import { type Colouring, type RGB } from "./colour";
 import { CODE_MISSING, isCategorical, type Table } from "./data";
 import type { Layout } from "./layout";
-import { bundleCentres, linesDrawer, type LinesSetup } from "./linespass";
+import { bundleCentres, HIST_BINS, linesDrawer, type LinesSetup } from "./linespass";
 import { Accumulator, gainForOpacity } from "./raster";
 import { WorkerPool } from "./workers";
 import type { AxisScale } from "./scales";
@@ -56,8 +56,6 @@ export interface PaintResult {
 interface Pass {
   job: PaintJob;
   codes: Uint16Array[];
-  /** y (device pixels) of row i on axis a */
-  rowY: (a: number, i: number) => number;
   xs: Float32Array;
   sel: Accumulator;
   fad: Accumulator;
@@ -68,7 +66,6 @@ interface Pass {
 }
 
 export const BINS = 128;
-export const HIST_BINS = 64;
 const CHUNK_MS = 14;
 /** Tables with at least this many cells (rows x axes) are drawn by Web Workers in lines mode. */
 const WORKER_CELLS = 400_000;
@@ -180,13 +177,8 @@ export class LinePainter {
     };
 
     if (k >= 2 && n > 0) {
-      const place = job.place;
       const xs = new Float32Array(job.layout.slots.map((s) => s.x * job.dpr));
-      const rowY = (a: number, i: number) => {
-        const c = codes[a][i];
-        return (place[a].base[c] + job.spread[i] * place[a].height[c]) * job.dpr;
-      };
-      const pass: Pass = { job, codes, rowY, xs, sel, fad, histSelected, histAll, chunked };
+      const pass: Pass = { job, codes, xs, sel, fad, histSelected, histAll, chunked };
       const ok = job.mode === "density" ? await this.density(pass) : await this.lines(pass);
       if (!ok || token !== this.token) return;
     }

@@ -148,19 +148,27 @@ export class View {
       this.sel = s;
       this.invalidate(false);
     });
+    // one kernel answer changes up to three traits: adopt it once, after all of them have arrived
+    let answerQueued = false;
     const onAnswer = () => {
-      if (!this.dragging && model.get("answered_seq") >= this.seqSent) this.adoptKernel();
+      if (answerQueued) return;
+      answerQueued = true;
+      queueMicrotask(() => {
+        answerQueued = false;
+        if (!this.dragging && model.get("answered_seq") >= this.seqSent) this.adoptKernel();
+      });
     };
     this.listen("change:answered_seq", onAnswer);
     this.listen("change:mask_bits", onAnswer);
     this.listen("change:count", onAnswer);
     this.listen("change:height", () => this.resize());
     this.listen("change:orientation", () => this.resize());
-    for (const name of ["color_by", "opacity", "view_mode", "curves", "bundle_by", "bundle_strength", "histograms"]) {
-      this.listen(`change:${name}`, () => {
-        this.colours = null;
-        this.invalidate(true);
-      });
+    this.listen("change:color_by", () => {
+      this.colours = null; // the colour groups depend on the colour column only
+      this.invalidate(true);
+    });
+    for (const name of ["opacity", "view_mode", "curves", "bundle_by", "bundle_strength", "histograms"]) {
+      this.listen(`change:${name}`, () => this.invalidate(true));
     }
     this.listen("change:pinned", () => this.invalidate(false));
     this.listen("change:flipped", () => {

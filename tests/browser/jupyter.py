@@ -126,6 +126,23 @@ class JupyterServer:
         shutil.rmtree(self.private, ignore_errors=True)
 
 
+def drag_axis(page, view: int, axis: str, v0: float, v1: float, steps: int = 10) -> None:
+    """Drag with the mouse along an (unflipped, vertical) axis of the view-th widget, from v0 to v1."""
+    lay = json.loads(page.locator(".axw-root").nth(view).get_attribute("data-layout"))
+    ax = next(a for a in lay["axes"] if a["name"] == axis)
+    box = page.locator("canvas.axw-overlay").nth(view).bounding_box()
+
+    def y(v):
+        f = (v - ax["lo"]) / (ax["hi"] - ax["lo"])
+        return box["y"] + lay["bottom"] - f * (lay["bottom"] - lay["top"])
+
+    x = box["x"] + ax["x"]
+    page.mouse.move(x, y(v0))
+    page.mouse.down()
+    page.mouse.move(x, y(v1), steps=steps)
+    page.mouse.up()
+
+
 class NotebookPage:
     """A notebook open in a Jupyter front end: run cells, read outputs (cells found by ``CELLS``)."""
 

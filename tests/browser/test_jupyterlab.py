@@ -6,7 +6,7 @@ import json
 
 import pytest
 
-from tests.browser.jupyter import JupyterServer, LabNotebook
+from tests.browser.jupyter import JupyterServer, LabNotebook, drag_axis
 
 pytestmark = [pytest.mark.browser, pytest.mark.jupyter]
 
@@ -56,18 +56,7 @@ def test_drag_in_jupyterlab_gives_exact_kernel_mask(browser, lab):
         page.wait_for_selector(".axw-root canvas.axw-overlay", timeout=30_000)
         root, lay = _layout(page)
         assert root.get_attribute("data-total") == "4000"
-        ax = next(a for a in lay["axes"] if a["name"] == "efficiency_pct")
-        box = page.locator("canvas.axw-overlay").first.bounding_box()
-
-        def y(v):
-            f = (v - ax["lo"]) / (ax["hi"] - ax["lo"])
-            return box["y"] + lay["bottom"] - f * (lay["bottom"] - lay["top"])
-
-        x = box["x"] + ax["x"]
-        page.mouse.move(x, y(72))
-        page.mouse.down()
-        page.mouse.move(x, y(55), steps=10)
-        page.mouse.up()
+        drag_axis(page, 0, "efficiency_pct", 72, 55)
         # the page adopts the kernel's answer
         page.wait_for_function(
             "() => document.querySelector('.axw-root').dataset.state === 'synced'", timeout=20_000
@@ -139,19 +128,7 @@ def test_second_view_is_live_and_reload_keeps_the_view(browser, lab):
         nb.run(1)
         page.wait_for_function("() => document.querySelectorAll('.axw-root').length === 2", timeout=30_000)
         # drag a second range in the second view; the first view follows
-        root, lay = _state_of(page, 1)
-        ax = next(a for a in lay["axes"] if a["name"] == "flow_m3h")
-        box = page.locator("canvas.axw-overlay").nth(1).bounding_box()
-
-        def y(v):
-            f = (v - ax["lo"]) / (ax["hi"] - ax["lo"])
-            return box["y"] + lay["bottom"] - f * (lay["bottom"] - lay["top"])
-
-        x = box["x"] + ax["x"]
-        page.mouse.move(x, y(120))
-        page.mouse.down()
-        page.mouse.move(x, y(40), steps=8)
-        page.mouse.up()
+        drag_axis(page, 1, "flow_m3h", 120, 40, steps=8)
         page.wait_for_function(
             "() => [...document.querySelectorAll('.axw-root')].every(r => r.dataset.state === 'synced')"
             " && new Set([...document.querySelectorAll('.axw-root')].map(r => r.dataset.count)).size === 1",
