@@ -474,7 +474,9 @@ class AxesWidget(anywidget.AnyWidget):
         Brushing, reordering and flipping work there without a kernel; the page's own count stands in
         for the kernel's. Returns the HTML text, or the path written when ``path`` is given.
         """
-        return export.to_html(self, path, title=title)
+        from . import __version__  # the package's version, read once in __init__.py
+
+        return export.to_html(self, path, title=title, version=__version__)
 
     @property
     def axes(self) -> list[str]:
