@@ -7,7 +7,7 @@ selection against the other rows).
 
 from importlib.metadata import version
 
-from . import demo, measures, ordering
+from . import contrast, demo, measures, ordering
 from .encode import Column, ColumnError
 from .export import ExportError, PngRequest
 from .selection import SelectionError
@@ -20,6 +20,7 @@ __all__ = [
     "ExportError",
     "PngRequest",
     "SelectionError",
+    "contrast",
     "demo",
     "measures",
     "ordering",

@@ -15,7 +15,7 @@ import numpy as np
 import pandas as pd
 import traitlets as t
 
-from . import export, measures, ordering
+from . import contrast, export, measures, ordering
 from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
 from .selection import MaskEvaluator, SelectionError, normalise, pack, to_query
 
@@ -496,6 +496,14 @@ class AxesWidget(anywidget.AnyWidget):
             return
         self.column(axis)
         self.ranges = {k: v for k, v in self.ranges.items() if k != axis}
+
+    def contrast(self) -> pd.DataFrame:
+        """How much the selected rows differ from the other rows on each axis, most different first.
+
+        KS statistic for number and date axes, total-variation distance for label axes (details in
+        ``axeswidget.contrast.compare``). Raises ValueError when no row or every row is selected.
+        """
+        return contrast.compare(self._columns, self.mask, brushed=self.ranges)
 
     def __repr__(self) -> str:
         return f"AxesWidget({len(self._columns)} axes, {self.count} of {len(self._frame)} rows selected)"
