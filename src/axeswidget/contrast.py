@@ -197,7 +197,7 @@ def chi2_sf(x: float, dof: int) -> float:
             ap += 1.0
             term *= h / ap
             total += term
-            if abs(term) < abs(total) * 1e-16:
+            if abs(term) < abs(total) * 1e-15:
                 break
         return min(max(1.0 - total * scale, 0.0), 1.0)
     b = h + 1.0 - a
@@ -213,6 +213,6 @@ def chi2_sf(x: float, dof: int) -> float:
         d = 1.0 / d
         delta = d * c
         frac *= delta
-        if abs(delta - 1.0) < 1e-16:
+        if abs(delta - 1.0) < 1e-15:
             break
     return min(max(scale * frac, 0.0), 1.0)
