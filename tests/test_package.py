@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import ast
+import json
+import re
 from pathlib import Path
 
 import pytest
@@ -39,3 +41,10 @@ def test_export_imports_nothing_from_the_package():
         if alias.name.startswith("axeswidget")
     ]
     assert relative == [] and absolute == []
+
+
+def test_standalone_page_names_the_package_version():
+    w = aw.AxesWidget(aw.demo.pump_fleet(50, seed=1))
+    page = w.to_html()
+    state = re.search(r'<script type="application/json" id="axw-state">(.*?)</script>', page, re.S).group(1)
+    assert json.loads(state)["caption"]["version"] == aw.__version__
