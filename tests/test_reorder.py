@@ -108,3 +108,23 @@ def test_axis_domains_of_iris_match_the_published_summary(iris):
     # set is the mean of all rows (the published means are those of the whole data set)
     means = w.selected.mean().round(2).tolist()
     assert means == pytest.approx([5.84, 3.05, 3.76, 1.20], abs=0.011)
+
+
+def test_association_reads_the_widgets_own_columns():
+    # a label column whose most frequent label is not the first in sorted order: the widget's axis puts
+    # the most frequent label first, and the measures use that axis order (the columns it classified)
+    rng = np.random.default_rng(8)
+    n = 500
+    word = rng.choice(["pear", "apple", "fig"], n, p=[0.6, 0.3, 0.1])
+    value = np.where(word == "pear", 0.0, np.where(word == "apple", 1.0, 2.0)) + rng.normal(size=n)
+    df = pd.DataFrame({"word": word, "value": value})
+    w = aw.AxesWidget(df)
+    labels = w.column("word").labels
+    assert labels == ["pear", "apple", "fig"]
+    axis_codes = pd.Series(word).map({lab: i for i, lab in enumerate(labels)})
+    ref = stats.spearmanr(axis_codes, value).statistic  # reference: scipy.stats.spearmanr on axis codes
+    got = w.association("spearman")
+    assert got.loc["word", "value"] == pytest.approx(ref, abs=1e-12)
+    sorted_codes = pd.factorize(pd.Series(word), sort=True)[0]
+    other = stats.spearmanr(sorted_codes, value).statistic  # reference: scipy, sorted label order
+    assert abs(other - ref) > 0.1  # the two label orders give different answers; the widget's is used

@@ -34,8 +34,6 @@ CATEGORY_BAND_LIMIT = 60
 #: object columns with at most this many distinct labels are categories; more are skipped
 CATEGORY_LIMIT = 100_000
 
-NUMERIC_KINDS = ("number", "integer", "datetime", "timedelta")
-
 
 class ColumnError(ValueError):
     """A column cannot be used as an axis; the message names the column and the problem."""

@@ -88,10 +88,13 @@ class PngRequest:
         return f"<PNG {str(self.path)!r}: {state}>"
 
 
-def _check_widget(widget, what: str) -> None:
-    from .widget import AxesWidget  # here, not at the top: widget.py may import this module
+#: what export needs of a widget: its state (with the ``table`` trait), its views, and page messages
+_WIDGET_PARTS = ("table", "views", "get_state", "send", "on_msg")
 
-    if not isinstance(widget, AxesWidget):
+
+def _check_widget(widget, what: str) -> None:
+    """Refuse anything that does not offer what an AxesWidget offers (this module does not import it)."""
+    if not all(hasattr(widget, part) for part in _WIDGET_PARTS):
         raise TypeError(f"{what} expects an AxesWidget, got {type(widget).__name__}")
 
 
@@ -218,7 +221,7 @@ try {
   const cap = payload.caption;
   document.getElementById("axw-title").textContent = cap.title;
   document.getElementById("axw-meta").textContent =
-    "exported from axeswidget " + cap.version + " on " + cap.date + " \\u00b7 " +
+    "exported from axeswidget" + (cap.version ? " " + cap.version : "") + " on " + cap.date + " \\u00b7 " +
     cap.rows.toLocaleString("en-US") + " rows";
   const attrs = payload.state;
   payload.buffer_paths.forEach((path, k) => {
@@ -280,7 +283,7 @@ body {{ margin: 0; padding: 16px 20px; background: #fff; color: #1f1f1f;
 """
 
 
-def to_html(widget, path=None, *, title: str = "axeswidget chart") -> str | Path:
+def to_html(widget, path=None, *, title: str = "axeswidget chart", version: str = "") -> str | Path:
     """One self-contained HTML page showing the widget as it is now; written to ``path`` if given.
 
     The page holds the front-end code, the data (2 bytes per cell, base64-encoded: about 2.7 bytes per
@@ -289,10 +292,9 @@ def to_html(widget, path=None, *, title: str = "axeswidget chart") -> str | Path
     draws the chart, and ranges can be dragged; the counts are then the page's own, computed from the
     quantised codes rather than the exact values.
 
+    ``version`` is the package version named in the page's caption (``AxesWidget.to_html`` gives it).
     Returns the HTML text when ``path`` is None, else the :class:`~pathlib.Path` written.
     """
-    from . import __version__  # here, not at the top: widget.py may import this module
-
     if not isinstance(title, str):
         raise TypeError(f"title must be a str, got {type(title).__name__}")
     _check_widget(widget, "to_html")
@@ -303,7 +305,7 @@ def to_html(widget, path=None, *, title: str = "axeswidget chart") -> str | Path
     rows = int((state.get("table") or {}).get("n", 0))
     caption = {
         "title": title,
-        "version": __version__,
+        "version": version,
         "date": _dt.datetime.now().astimezone().strftime("%Y-%m-%d %H:%M %Z").strip(),
         "rows": rows,
     }

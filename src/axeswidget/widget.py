@@ -15,7 +15,7 @@ import numpy as np
 import pandas as pd
 import traitlets as t
 
-from . import export
+from . import contrast, export, measures, ordering
 from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
 from .selection import MaskEvaluator, SelectionError, normalise, pack, to_query
 
@@ -334,26 +334,15 @@ class AxesWidget(anywidget.AnyWidget):
             )
 
     # -- axis order ----------------------------------------------------------------------------------
-    def _analysis_frame(self) -> pd.DataFrame:
-        """One column per axis for the association measures: numbers (dates as ns), labels as categories."""
-        out = {}
-        for name, col in self._columns.items():
-            if col.kind in ("category", "boolean"):
-                out[name] = pd.Categorical.from_codes(col.label_codes, categories=range(len(col.labels)))
-            else:
-                out[name] = col.axis_units()
-        return pd.DataFrame(out)
-
     def association(self, metric: str = "spearman", *, max_rows: int | None = 200_000, seed: int = 0):
-        """Association between every pair of axes, as a DataFrame (see ``ordering.association``).
+        """Association between every pair of axes, as a DataFrame (see ``measures.association``).
 
         ``metric``: "pearson", "spearman", "kendall", "crossings" (count of crossing line pairs) or
         "mutual_info" (normalised, binned; also for category axes). Above ``max_rows`` rows a seeded
-        sample is used; ``result.attrs`` says whether the result is exact.
+        sample is used; ``result.attrs`` says whether the result is exact. The measures read the axes as
+        the widget classified them (category axes by their label codes, in axis order).
         """
-        from .ordering import association
-
-        return association(self._analysis_frame(), metric, max_rows=max_rows, seed=seed)
+        return measures.association(self._columns, metric, max_rows=max_rows, seed=seed)
 
     def reorder(self, metric: str = "spearman", *, maximize: bool = True, first: str | None = None, **kw):
         """Choose the axis order from an association metric, apply it and return it.
@@ -363,16 +352,13 @@ class AxesWidget(anywidget.AnyWidget):
         found helpful for spotting clusters. ``first`` pins the first axis. For "crossings" the
         order minimises crossings when ``maximize`` is True.
         """
-        from .ordering import best_order
-
         matrix = self.association(metric, **kw)
         if metric == "crossings":
             matrix = -matrix  # fewest crossings = largest negated count
         if first is not None and first not in self._columns:
             raise ValueError(f"unknown axis {first!r} for first=; the axes are: {', '.join(self._columns)}")
-        order = [
-            str(a) for a in best_order(matrix, maximize=maximize, absolute=metric != "crossings", first=first)
-        ]
+        best = ordering.best_order(matrix, maximize=maximize, absolute=metric != "crossings", first=first)
+        order = [str(a) for a in best]
         self.order = order
         return order
 
@@ -381,10 +367,8 @@ class AxesWidget(anywidget.AnyWidget):
 
         Applies the flips to the page and returns the flipped axes.
         """
-        from .ordering import suggest_flips
-
         matrix = self.association(metric, **kw)
-        flips = [str(a) for a in suggest_flips(matrix, self.order)]
+        flips = [str(a) for a in ordering.suggest_flips(matrix, self.order)]
         self.flipped = flips
         return flips
 
@@ -490,7 +474,9 @@ class AxesWidget(anywidget.AnyWidget):
         Brushing, reordering and flipping work there without a kernel; the page's own count stands in
         for the kernel's. Returns the HTML text, or the path written when ``path`` is given.
         """
-        return export.to_html(self, path, title=title)
+        from . import __version__  # the package's version, read once in __init__.py
+
+        return export.to_html(self, path, title=title, version=__version__)
 
     @property
     def axes(self) -> list[str]:
@@ -510,6 +496,14 @@ class AxesWidget(anywidget.AnyWidget):
             return
         self.column(axis)
         self.ranges = {k: v for k, v in self.ranges.items() if k != axis}
+
+    def contrast(self) -> pd.DataFrame:
+        """How much the selected rows differ from the other rows on each axis, most different first.
+
+        KS statistic for number and date axes, total-variation distance for label axes (details in
+        ``axeswidget.contrast.compare``). Raises ValueError when no row or every row is selected.
+        """
+        return contrast.compare(self._columns, self.mask, brushed=self.ranges)
 
     def __repr__(self) -> str:
         return f"AxesWidget({len(self._columns)} axes, {self.count} of {len(self._frame)} rows selected)"

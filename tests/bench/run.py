@@ -20,7 +20,7 @@ import numpy as np
 import pandas as pd
 
 import axeswidget as aw
-from axeswidget import density, ordering
+from axeswidget import density, measures, ordering
 
 OUT = Path(__file__).resolve().parents[2] / "bench-results"
 
@@ -102,7 +102,7 @@ def bench_ordering(rows: int, cols: int) -> dict:
 
     def ours(key, **sample):
         def run():
-            m = ordering.association(df, "spearman", **sample)
+            m = measures.association(df, "spearman", **sample)
             box[key] = (m, ordering.best_order(m))
 
         return run
@@ -114,8 +114,8 @@ def bench_ordering(rows: int, cols: int) -> dict:
     t_sample = best_of(ours("sample"), repeat)  # association's default max_rows
     t_ref = best_of(scipy_matrix, repeat)
     x, y = data[:, 0], data[:, 1]
-    t_tau = best_of(lambda: box.update(tau=ordering.kendall_tau_b(x, y)), repeat)
-    t_cross = best_of(lambda: box.update(cross=ordering.crossings(x, y)), repeat)
+    t_tau = best_of(lambda: box.update(tau=measures.kendall_tau_b(x, y)), repeat)
+    t_cross = best_of(lambda: box.update(cross=measures.crossings(x, y)), repeat)
     t_ref_tau = best_of(lambda: box.update(ref_tau=stats.kendalltau(x, y).statistic), repeat)
     exact_matrix = box["exact"][0].to_numpy()
     return {
