@@ -129,10 +129,12 @@ def to_frame(data, names=None) -> pd.DataFrame:
         if data.ndim != 2:
             raise TypeError(f"axeswidget: a numpy array must be 2-D (rows x columns), got {data.ndim}-D")
         cols = [str(i) for i in range(data.shape[1])] if names is None else list(names)
+        check_names([c for c in cols if isinstance(c, str)])
         if len(cols) != data.shape[1]:
             raise ValueError(f"axeswidget: {len(cols)} names for {data.shape[1]} columns")
         return pd.DataFrame(data.copy(), columns=cols)  # a copy: later edits of the array do not leak in
     if isinstance(data, dict):
+        check_names([k for k in data if isinstance(k, str)])
         try:
             return pd.DataFrame(
                 {
@@ -412,7 +414,8 @@ def encode_frame(frame: pd.DataFrame, axes=None) -> dict[str, Column]:
         for i, name in enumerate(names):
             label = labels[i]
             if name in dupes:
-                skipped.append(f"{name!r} ({_twice(name, names)})")
+                if name not in names[:i]:  # named once
+                    skipped.append(f"{name!r} ({_twice(name, names)})")
                 continue
             try:
                 out[name] = encode_column(label, frame.iloc[:, i], name)
@@ -424,7 +427,7 @@ def encode_frame(frame: pd.DataFrame, axes=None) -> dict[str, Column]:
                 + (f": {'; '.join(skipped)}" if skipped else " (it has no columns)")
             )
         if skipped:
-            warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=3)
+            warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=4)
         return out
     if isinstance(axes, str | tuple):
         axes = [axes]

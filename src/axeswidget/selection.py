@@ -51,13 +51,18 @@ def _number(value, axis: str, exact_int: bool = False) -> float | int | None:
         out = float(value)
     except OverflowError:
         raise SelectionError(
-            f"range on {axis!r}: the end {value!r} is too large for a float64 (beyond ±1.8e308)"
+            f"range on {axis!r}: the end {_short(value)} is too large for a float64 (beyond ±1.8e308)"
         ) from None
     if math.isnan(out):
         raise SelectionError(f"range on {axis!r}: an end is NaN; give a number, or None for an open end")
     if exact_int and isinstance(value, int | np.integer) and not math.isinf(out):
         return int(value)  # compared exactly with the column's integers (float64 stops at 2**53)
     return out
+
+
+def _short(value) -> str:
+    text = repr(value)
+    return text if len(text) <= 40 else f"{text[:12]}…{text[-4:]} ({len(text)} characters)"
 
 
 def _timestamp(value, col: Column) -> str | None:
