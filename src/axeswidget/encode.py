@@ -150,11 +150,13 @@ def to_frame(data, names=None) -> pd.DataFrame:
         return _foreign(data.to_pandas, "polars")
     if mod == "pyarrow" and hasattr(data, "to_pandas"):
         check_names([str(c) for c in data.schema.names] if hasattr(data, "schema") else [])
-        return _foreign(data.to_pandas, "pyarrow")
+        return _foreign(lambda: data.to_pandas(date_as_object=False), "pyarrow")  # dates as datetime64
     if hasattr(data, "__arrow_c_stream__"):
         import pyarrow as pa
 
-        return _foreign(lambda: pa.RecordBatchReader.from_stream(data).read_all().to_pandas(), "Arrow")
+        return _foreign(
+            lambda: pa.RecordBatchReader.from_stream(data).read_all().to_pandas(date_as_object=False), "Arrow"
+        )
     raise TypeError(
         f"axeswidget: cannot read a table from {type(data).__name__}; give a pandas or polars DataFrame, "
         "a pyarrow Table, a dict of 1-D arrays or a 2-D numpy array"
