@@ -97,9 +97,9 @@ def as_input(df: pd.DataFrame, how: str):
         return df.to_numpy(), list(df.columns)
     if how == "dict" and plain:
         return {c: df[c].to_numpy() for c in df.columns}, None
-    if how == "pyarrow" and plain:
+    if how == "pyarrow":
         return pa.Table.from_pandas(df, preserve_index=False), None
-    if how == "polars" and plain and all(df[c].dtype.kind in "iub" for c in df.columns):
+    if how == "polars":
         return pl.from_pandas(df), None
     return df, None
 
@@ -238,7 +238,9 @@ def test_random_steps_keep_state_or_match_pandas(data):
                         )
                     )
                 )
-                table, names = as_input(new, draw(st.sampled_from(["pandas", "pyarrow", "dict"])))
+                table, names = as_input(
+                    new, draw(st.sampled_from(["pandas", "pyarrow", "polars", "dict", "numpy"]))
+                )
                 involved = list(new.columns) + involved + ["no column"]
                 if step == "swap":
                     w.data = table
