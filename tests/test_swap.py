@@ -190,6 +190,7 @@ def test_resume_is_all_or_nothing_and_leaves_the_old_widget_alone(old):
     before = state_of(a)
     with pytest.raises(aw.ColumnError):
         aw.AxesWidget(pd.DataFrame({"z": [1j]}), resume=a)
-    b = aw.AxesWidget(old.iloc[:2], resume=a)
+    with pytest.warns(UserWarning, match=r"could not take over all of the view: range on 'size' clipped"):
+        b = aw.AxesWidget(old.iloc[:2], resume=a)
     assert state_of(a) == before
     assert b.count == int(old.iloc[:2]["size"].between(2, 3).sum())  # reference: Series.between

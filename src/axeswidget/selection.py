@@ -322,7 +322,12 @@ class MaskEvaluator:
             if self.ranges.get(axis) == items and axis in self._parts:
                 parts[axis] = self._parts[axis]
             else:
-                parts[axis] = axis_mask(self.columns[axis], items)
+                try:
+                    parts[axis] = axis_mask(self.columns[axis], items)
+                except (ArithmeticError, TypeError, ValueError) as err:
+                    raise SelectionError(
+                        f"selection on {axis!r} cannot be evaluated: {type(err).__name__}: {err}"
+                    ) from None
         self._pending = ({k: list(v) for k, v in ranges.items()}, parts)
 
     def update(self, ranges: Ranges) -> np.ndarray:
