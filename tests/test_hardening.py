@@ -160,6 +160,16 @@ def test_refused_ends_name_the_axis_and_change_nothing(axis, end, message):
         normalise({axis: [[end, None]]}, {a: w.column(a) for a in w.axes})
 
 
+@pytest.mark.parametrize("end", [np.timedelta64(1, "s"), np.datetime64("2024-01-01"), 1j, b"1", pd.NA])
+def test_odd_ends_on_number_axes_are_clear_errors(end):
+    w = aw.AxesWidget(pd.DataFrame({"x": [1.0, 2.0], "k": [1, 2]}), ranges={"x": [[1.5, None]]})
+    before = state_of(w)
+    for axis in ("x", "k"):
+        with pytest.raises(traitlets.TraitError, match=rf"range on '{axis}': .* expected a number"):
+            w.ranges = {axis: [[end, None]]}
+        assert state_of(w) == before
+
+
 # -- integers above 2**53 ------------------------------------------------------------------------------
 BIG = 2**53
 

@@ -45,7 +45,10 @@ def _number(value, axis: str, exact_int: bool = False) -> float | int | None:
     """A number end as float64 (or as the exact integer, for integer columns given an integer)."""
     if value is None:
         return None
-    if isinstance(value, bool) or not isinstance(value, Real | np.number):
+    if (
+        isinstance(value, bool | np.timedelta64 | np.datetime64)  # numpy counts durations as integers
+        or not isinstance(value, Real | np.number)
+    ):
         raise SelectionError(f"range on {axis!r}: {value!r} is a {type(value).__name__}, expected a number")
     try:
         out = float(value)
