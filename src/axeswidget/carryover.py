@@ -156,7 +156,7 @@ def carry_over(view: dict, old_columns: dict, new_columns: dict, n_rows: int):
         col = new_columns.get(axis)
         if col is not None and col.kind in ("number", "integer") and col.lo > 0:
             log.append(axis)
-        else:
+        elif axis not in gone:
             notes.append(f"log scale on {axis!r} (no longer an axis of positive numbers)")
     out["log_axes"] = log
     for option in ("color_by", "bundle_by"):
