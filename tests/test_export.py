@@ -102,6 +102,8 @@ def test_the_content_security_policy_lets_only_the_loader_run(widget):
     digest = base64.b64encode(hashlib.sha256(loader.encode("utf-8")).digest()).decode()
     assert f"'sha256-{digest}'" in csp
     assert "default-src 'none'" in csp and "unsafe-inline" not in csp.split("script-src")[1].split(";")[0]
+    # reference: CSP Level 3 — base-uri and form-action do not fall back to default-src
+    assert "base-uri 'none'" in csp and "form-action 'none'" in csp
 
 
 def test_a_script_end_inside_the_code_cannot_break_out(widget, monkeypatch):

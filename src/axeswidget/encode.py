@@ -2,8 +2,10 @@
 
 Two things come out of every column:
 
-* the *exact* values the kernel keeps for the mask (float64 for numbers, int64 nanoseconds for dates
-  and durations, integer category codes for labels), and
+* the *exact* values the kernel keeps for the mask (float64 for numbers, plus the integers themselves
+  in their own type for integer columns, so that values above 2**53 compare exactly; int64 nanoseconds
+  for dates and durations, which therefore must lie within 1677-09-21 .. 2262-04-11 / ±292 years;
+  integer category codes for labels), and
 * the *wire* form the front end draws from: one ``uint16`` code per cell, sent as a binary buffer.
   Numbers, dates and durations are quantised linearly (or logarithmically, on request) over the
   column's finite domain onto ``0..CODE_MAX``; category axes send the index of the row's band;
@@ -48,6 +50,7 @@ class Column:
     source: object  # the column label in the user's table
     missing: np.ndarray  # bool per row
     values: np.ndarray | None = None  # number/integer: float64; datetime/timedelta: int64 ns
+    exact: np.ndarray | None = None  # integer columns: the integers (int64 or uint64, 0 where missing)
     lo: float = 0.0  # finite domain in axis units (float64; ns for datetime/timedelta)
     hi: float = 1.0
     log: bool = False
@@ -124,29 +127,75 @@ def to_frame(data, names=None) -> pd.DataFrame:
         if data.ndim != 2:
             raise TypeError(f"axeswidget: a numpy array must be 2-D (rows x columns), got {data.ndim}-D")
         cols = [str(i) for i in range(data.shape[1])] if names is None else list(names)
+        check_names([c for c in cols if isinstance(c, str)])
         if len(cols) != data.shape[1]:
             raise ValueError(f"axeswidget: {len(cols)} names for {data.shape[1]} columns")
-        return pd.DataFrame(data, columns=cols)
+        return pd.DataFrame(data.copy(), columns=cols)  # a copy: later edits of the array do not leak in
     if isinstance(data, dict):
+        check_names([k for k in data if isinstance(k, str)])
         try:
             return pd.DataFrame(
-                {k: np.asarray(v) if not isinstance(v, pd.Series) else v for k, v in data.items()}
+                {
+                    k: np.array(v, copy=True) if not isinstance(v, pd.Series) else v.copy()
+                    for k, v in data.items()
+                }
             )
         except ValueError as err:
             raise ValueError(f"axeswidget: the dict's arrays cannot form a table: {err}") from None
     mod = type(data).__module__.split(".")[0]
     if mod == "polars":
-        return data.to_pandas()
+        check_names([str(c) for c in data.columns])
+        return _foreign(data.to_pandas, "polars")
     if mod == "pyarrow" and hasattr(data, "to_pandas"):
-        return data.to_pandas()
+        check_names([str(c) for c in data.schema.names] if hasattr(data, "schema") else [])
+        return _foreign(lambda: data.to_pandas(date_as_object=False), "pyarrow")  # dates as datetime64
     if hasattr(data, "__arrow_c_stream__"):
         import pyarrow as pa
 
-        return pa.RecordBatchReader.from_stream(data).read_all().to_pandas()
+        return _foreign(
+            lambda: pa.RecordBatchReader.from_stream(data).read_all().to_pandas(date_as_object=False), "Arrow"
+        )
     raise TypeError(
         f"axeswidget: cannot read a table from {type(data).__name__}; give a pandas or polars DataFrame, "
         "a pyarrow Table, a dict of 1-D arrays or a 2-D numpy array"
     )
+
+
+def check_names(names) -> None:
+    """Refuse names that polars/Arrow cannot take or the page cannot receive (NUL, lone surrogates)."""
+    for name in names:
+        problem = name_problem(name)
+        if problem:
+            raise ColumnError(f"column {name!r}: {problem}; rename the column")
+
+
+def name_problem(name: str) -> str | None:
+    """Why a column name (or label) cannot be used, or None."""
+    if "\x00" in name:
+        return "the name holds a NUL character"
+    if not _is_utf8(name):
+        return "the name holds a lone surrogate, which cannot be sent to the page as UTF-8"
+    return None
+
+
+def _is_utf8(text: str) -> bool:
+    try:
+        text.encode("utf-8")
+    except UnicodeEncodeError:
+        return False
+    return True
+
+
+def _foreign(convert, library: str) -> pd.DataFrame:
+    """Run a conversion by another library; its panics (BaseException in polars) become clear errors."""
+    try:
+        return convert()
+    except (KeyboardInterrupt, SystemExit):
+        raise
+    except BaseException as err:  # polars' PanicException derives from BaseException
+        raise ValueError(
+            f"axeswidget: {library} could not convert the table: {type(err).__name__}: {err}"
+        ) from None
 
 
 def display_name(label) -> str:
@@ -226,7 +275,10 @@ def _category_column(name, label, series: pd.Series) -> Column:
             raise ColumnError(
                 f"column {name!r} has {uniq.size} distinct labels; at most {CATEGORY_LIMIT} are drawn"
             )
-        is_bool = pd.api.types.is_bool_dtype(series.dtype) or set(uniq) <= {"True", "False"}
+        # a boolean axis only for bool values: text that reads "True"/"False" stays text (labels), and an
+        # empty or all-missing text column is a category axis without labels
+        kinds = set(map(type, values[present]))
+        is_bool = pd.api.types.is_bool_dtype(series.dtype) or (bool(kinds) and kinds <= {bool, np.bool_})
         if is_bool:
             order = [i for lab in ("False", "True") for i in np.flatnonzero(uniq == lab)]
         else:  # most frequent first; ties by label
@@ -239,6 +291,11 @@ def _category_column(name, label, series: pd.Series) -> Column:
         counts = counts[order]
         kind = "boolean" if is_bool else "category"
         raw = [lab == "True" for lab in labels] if is_bool else labels
+    unsendable = [lab for lab in labels if not _is_utf8(lab)]
+    if unsendable:
+        raise ColumnError(
+            f"column {name!r}: the label {unsendable[0]!r} holds a lone surrogate (not sendable)"
+        )
     if len(set(labels)) != len(labels):
         dupes = sorted({lab for lab in labels if labels.count(lab) > 1})
         raise ColumnError(f"column {name!r}: different labels read the same as text: {dupes[:5]}")
@@ -248,18 +305,53 @@ def _category_column(name, label, series: pd.Series) -> Column:
     return col
 
 
+_NS_SPAN = "1677-09-21 .. 2262-04-11"
+
+
+def _as_ns(raw: np.ndarray, missing: np.ndarray, name: str, what: str) -> np.ndarray:
+    """int64 nanoseconds from datetime64/timedelta64 values in any unit; values that do not fit are refused.
+
+    Converting a non-nanosecond column blindly would wrap such values around silently.
+    """
+    unit, _ = np.datetime_data(raw.dtype)
+    ints = raw.view(np.int64)
+    factor = 1 if unit == "ns" else int(np.timedelta64(1, unit).astype("timedelta64[ns]").view(np.int64))
+    if factor == 1:
+        return ints.copy()
+    present = ints[~missing]
+    limit = (2**63 - 1) // factor
+    outside = present[(present > limit) | (present < -limit)]
+    if outside.size:
+        example = raw[~missing][(present > limit) | (present < -limit)][0]
+        span = _NS_SPAN if what == "dates" else "±292 years"
+        raise ColumnError(
+            f"column {name!r} has {what} outside {span} (e.g. {example}), which the widget cannot hold "
+            "exactly in nanoseconds; clip or convert the column"
+        )
+    return np.where(missing, np.iinfo(np.int64).min, ints * factor)
+
+
 def encode_column(label, series: pd.Series, name: str | None = None) -> Column:
     """Describe and encode one column; raise ColumnError naming it if it cannot be an axis."""
     name = display_name(label) if name is None else name
+    problem = name_problem(name)
+    if problem:
+        raise ColumnError(f"column {name!r}: {problem}; rename the column")
     dtype = series.dtype
     if isinstance(dtype, pd.ArrowDtype):
         import pyarrow as pa
 
         at = dtype.pyarrow_dtype
         if pa.types.is_timestamp(at) or pa.types.is_date(at):
-            series = series.astype(f"datetime64[ns{', ' + at.tz if getattr(at, 'tz', None) else ''}]")
+            # keep the column's own unit here: a cast to ns would wrap dates beyond 2262 around
+            unit = (
+                getattr(at, "unit", "s")
+                if pa.types.is_timestamp(at)
+                else ("s" if at == pa.date32() else "ms")
+            )
+            series = series.astype(f"datetime64[{unit}{', ' + at.tz if getattr(at, 'tz', None) else ''}]")
         elif pa.types.is_duration(at):
-            series = series.astype("timedelta64[ns]")
+            series = series.astype(f"timedelta64[{at.unit}]")
         elif pa.types.is_dictionary(at):
             series = series.astype(str).where(series.notna()).astype("category")
         elif pa.types.is_boolean(at):
@@ -271,25 +363,32 @@ def encode_column(label, series: pd.Series, name: str | None = None) -> Column:
         col = _category_column(name, label, series)
     elif pd.api.types.is_datetime64_any_dtype(dtype):
         tz = str(dtype.tz) if getattr(dtype, "tz", None) is not None else None
-        ns = series.dt.tz_convert("UTC") if tz else series
+        naive = series.dt.tz_convert(None) if tz else series  # UTC wall time, in the column's own unit
         missing = series.isna().to_numpy(dtype=bool)
-        values = ns.to_numpy(dtype="datetime64[ns]").view(np.int64).copy()
+        values = _as_ns(naive.to_numpy(), missing, name, "dates")
         col = Column(name=name, kind="datetime", source=label, missing=missing, values=values, tz=tz)
         col.lo, col.hi = _domain(np.where(missing, np.nan, values.astype(np.float64)))
     elif pd.api.types.is_timedelta64_dtype(dtype):
         missing = series.isna().to_numpy(dtype=bool)
-        values = series.to_numpy(dtype="timedelta64[ns]").view(np.int64).copy()
+        values = _as_ns(series.to_numpy(), missing, name, "durations")
         col = Column(name=name, kind="timedelta", source=label, missing=missing, values=values)
         col.lo, col.hi = _domain(np.where(missing, np.nan, values.astype(np.float64)))
+    elif pd.api.types.is_complex_dtype(dtype):
+        raise ColumnError(f"column {name!r} holds complex numbers, which cannot be drawn on one axis")
     elif pd.api.types.is_numeric_dtype(dtype):
         values = series.to_numpy(dtype="float64", na_value=np.nan)
         missing = np.isnan(values)
         col = Column(name=name, kind="number", source=label, missing=missing, values=values)
         col.lo, col.hi = _domain(values)
-        if pd.api.types.is_integer_dtype(dtype) and not missing.all():
-            uniq = np.unique(values[~missing])
-            if uniq.size <= INTEGER_DISCRETE_LIMIT:
-                col.kind, col.discrete = "integer", [int(v) for v in uniq]
+        if pd.api.types.is_integer_dtype(dtype):
+            # the integers themselves, so that ranges compare exactly above 2**53
+            kind = np.dtype(getattr(dtype, "numpy_dtype", dtype)).kind
+            exact = series.to_numpy(dtype=np.uint64 if kind == "u" else np.int64, na_value=0)
+            col.exact = exact
+            if not missing.all():
+                uniq = np.unique(exact[~missing])
+                if uniq.size <= INTEGER_DISCRETE_LIMIT:
+                    col.kind, col.discrete = "integer", [int(v) for v in uniq]
     elif pd.api.types.is_object_dtype(dtype) or pd.api.types.is_string_dtype(dtype):
         why = _is_mixed_or_nested(series) if pd.api.types.is_object_dtype(dtype) else None
         if why:
@@ -315,7 +414,8 @@ def encode_frame(frame: pd.DataFrame, axes=None) -> dict[str, Column]:
         for i, name in enumerate(names):
             label = labels[i]
             if name in dupes:
-                skipped.append(f"{name!r} (the name appears more than once)")
+                if name not in names[:i]:  # named once
+                    skipped.append(f"{name!r} ({_twice(name, names)})")
                 continue
             try:
                 out[name] = encode_column(label, frame.iloc[:, i], name)
@@ -327,7 +427,7 @@ def encode_frame(frame: pd.DataFrame, axes=None) -> dict[str, Column]:
                 + (f": {'; '.join(skipped)}" if skipped else " (it has no columns)")
             )
         if skipped:
-            warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=3)
+            warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=4)
         return out
     if isinstance(axes, str | tuple):
         axes = [axes]
@@ -339,14 +439,24 @@ def encode_frame(frame: pd.DataFrame, axes=None) -> dict[str, Column]:
         if not hits:
             raise ColumnError(f"unknown column {wanted!r}; the table has: {', '.join(map(repr, names))}")
         if len(hits) > 1:
+            shown = display_name(wanted)
             raise ColumnError(
-                f"column name {display_name(wanted)!r} appears more than once; rename the duplicates"
+                _twice(shown, names)
+                if not shown
+                else f"column name {shown!r} appears more than once; rename the duplicates"
             )
         name = names[hits[0]]
         if name in out:
             raise ColumnError(f"axes= names column {name!r} twice")
         out[name] = encode_column(labels[hits[0]], frame.iloc[:, hits[0]], name)
     return out
+
+
+def _twice(name: str, names: list[str]) -> str:
+    times = names.count(name)
+    if not name:
+        return f"an empty column name appears {times} times; give the columns names"
+    return "the name appears more than once"
 
 
 def table_trait(columns: dict[str, Column], n: int) -> dict:

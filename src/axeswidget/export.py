@@ -312,10 +312,11 @@ def to_html(widget, path=None, *, title: str = "axeswidget chart", version: str 
     payload = {"state": clean, "buffer_paths": paths, "buffers": buffers, "caption": caption}
     loader = _LOADER
     digest = base64.b64encode(hashlib.sha256(loader.encode("utf-8")).digest()).decode("ascii")
-    # only the loader may run (by its hash) and the bundle it imports from a blob: URL; no requests
+    # only the loader may run (by its hash) and the bundle it imports from a blob: URL; no requests;
+    # no <base> element may redirect URLs and no form may submit anywhere (neither falls back to default-src)
     csp = (
         f"default-src 'none'; script-src 'sha256-{digest}' blob:; style-src 'unsafe-inline'; "
-        "img-src data: blob:"
+        "img-src data: blob:; base-uri 'none'; form-action 'none'"
     )
     page = _PAGE.format(
         csp=csp,

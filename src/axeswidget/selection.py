@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import datetime as _dt
 import math
+import unicodedata
 from collections.abc import Mapping
 from numbers import Real
 
@@ -40,15 +41,31 @@ def _is_pair(item) -> bool:
     return isinstance(item, list | tuple | np.ndarray) and not isinstance(item, str)
 
 
-def _number(value, axis: str) -> float | None:
+def _number(value, axis: str, exact_int: bool = False) -> float | int | None:
+    """A number end as float64 (or as the exact integer, for integer columns given an integer)."""
     if value is None:
         return None
-    if isinstance(value, bool) or not isinstance(value, Real | np.number):
+    if (
+        isinstance(value, bool | np.timedelta64 | np.datetime64)  # numpy counts durations as integers
+        or not isinstance(value, Real | np.number)
+    ):
         raise SelectionError(f"range on {axis!r}: {value!r} is a {type(value).__name__}, expected a number")
-    out = float(value)
+    try:
+        out = float(value)
+    except OverflowError:
+        raise SelectionError(
+            f"range on {axis!r}: the end {_short(value)} is too large for a float64 (beyond ±1.8e308)"
+        ) from None
     if math.isnan(out):
         raise SelectionError(f"range on {axis!r}: an end is NaN; give a number, or None for an open end")
+    if exact_int and isinstance(value, int | np.integer) and not math.isinf(out):
+        return int(value)  # compared exactly with the column's integers (float64 stops at 2**53)
     return out
+
+
+def _short(value) -> str:
+    text = repr(value)
+    return text if len(text) <= 40 else f"{text[:12]}…{text[-4:]} ({len(text)} characters)"
 
 
 def _timestamp(value, col: Column) -> str | None:
@@ -61,7 +78,7 @@ def _timestamp(value, col: Column) -> str | None:
         )
     try:
         ts = pd.Timestamp(value)
-    except (ValueError, TypeError) as err:
+    except (ValueError, TypeError, OverflowError) as err:
         raise SelectionError(f"range on {col.name!r}: cannot read {value!r} as a date/time ({err})") from None
     if pd.isna(ts):
         raise SelectionError(
@@ -72,22 +89,53 @@ def _timestamp(value, col: Column) -> str | None:
             f"range on {col.name!r}: {value!r} has a time zone but the column has none; drop the offset"
         )
     if col.tz is not None:
-        ts = ts.tz_localize(col.tz) if ts.tzinfo is None else ts.tz_convert(col.tz)
-    return ts.isoformat()
+        try:
+            ts = ts.tz_localize(col.tz) if ts.tzinfo is None else ts.tz_convert(col.tz)
+        except Exception as err:  # a wall time skipped or repeated by a clock change (DST), ...
+            raise SelectionError(
+                f"range on {col.name!r}: {value!r} is not one clear moment in {col.tz} "
+                f"({type(err).__name__}: {err}); give it with a UTC offset"
+            ) from None
+    try:
+        ns = ts.as_unit("ns").value
+    except (ValueError, OverflowError):
+        raise SelectionError(
+            f"range on {col.name!r}: {value!r} is outside the dates an axis can hold ({_NS_SPAN})"
+        ) from None
+    text = ts.as_unit("ns").isoformat()
+    try:  # the canonical text must read back as the same moment (historic offsets with seconds may not)
+        same = pd.Timestamp(text).as_unit("ns").value == ns
+    except (ValueError, TypeError, OverflowError):
+        same = False
+    if not same:
+        raise SelectionError(
+            f"range on {col.name!r}: {value!r} cannot be written as ISO 8601 text that reads back as the "
+            f"same moment in {col.tz}; give a time in a span with a whole-minute UTC offset"
+        )
+    return text
+
+
+_NS_SPAN = "1677-09-21 .. 2262-04-11"
+_MAX_SECONDS = (2**63 - 1) / 1e9  # the longest duration an axis holds (int64 nanoseconds, ±292 years)
 
 
 def _seconds(value, axis: str) -> float | None:
     if isinstance(value, pd.Timedelta | _dt.timedelta | np.timedelta64 | str):
         try:
             td = pd.Timedelta(value)
-        except ValueError as err:
+        except (ValueError, OverflowError) as err:
             raise SelectionError(f"range on {axis!r}: cannot read {value!r} as a duration ({err})") from None
         if pd.isna(td):
             raise SelectionError(
                 f"range on {axis!r}: an end is NaT; give a duration, or None for an open end"
             )
         return td.value / 1e9
-    return _number(value, axis)
+    out = _number(value, axis)
+    if out is not None and math.isfinite(out) and abs(out) >= _MAX_SECONDS:
+        raise SelectionError(
+            f"range on {axis!r}: {value!r} s is outside the durations an axis can hold (±292 years)"
+        )
+    return out
 
 
 def _end(value, col: Column, side: str):
@@ -97,7 +145,7 @@ def _end(value, col: Column, side: str):
     if col.kind == "timedelta":
         out = _seconds(value, col.name)
     else:
-        out = _number(value, col.name)
+        out = _number(value, col.name, exact_int=col.exact is not None)
     if out is not None and math.isinf(out):
         if (out < 0) == (side == "lo"):
             return None  # -inf as lo / +inf as hi: an open end
@@ -110,8 +158,8 @@ def _end_key(value, col: Column) -> float:
     if value is None:
         return -math.inf
     if col.kind == "datetime":
-        return float(pd.Timestamp(value).value)
-    return float(value)
+        return pd.Timestamp(value).as_unit("ns").value
+    return value  # int or float: Python compares the two exactly
 
 
 def normalise_items(items, col: Column) -> list:
@@ -135,6 +183,11 @@ def normalise_items(items, col: Column) -> list:
             if dict(item) != {"rest": True}:
                 raise SelectionError(
                     f"selection on {axis!r}: the only dict item is {{'rest': True}}, got {item!r}"
+                )
+            if len(col.labels) <= CATEGORY_BAND_LIMIT:
+                raise SelectionError(
+                    f"selection on {axis!r}: {{'rest': True}} picks the labels beyond the axis's "
+                    f"{CATEGORY_BAND_LIMIT} bands, but its {len(col.labels)} labels all have a band"
                 )
             picked.update(col.labels[CATEGORY_BAND_LIMIT:])
         elif categorical:
@@ -190,10 +243,30 @@ def _exact_end(value, col: Column):
     if value is None:
         return None
     if col.kind == "datetime":
-        return pd.Timestamp(value).value  # int64 ns since the epoch (UTC for tz-aware columns)
+        return pd.Timestamp(value).as_unit("ns").value  # int64 ns since the epoch (UTC for tz-aware columns)
     if col.kind == "timedelta":
         return int(round(value * 1e9))
     return value
+
+
+def _integer_hit(col: Column, lo, hi) -> np.ndarray:
+    """Rows of an integer column within [lo, hi], compared in the column's own integer type."""
+    info = np.iinfo(col.exact.dtype)
+    exact = col.exact
+    hit = ~col.missing
+    if lo is not None:
+        lo = math.ceil(lo)  # exact for floats and ints alike
+        if lo > info.max:
+            return np.zeros(len(exact), dtype=bool)
+        if lo > info.min:
+            hit = hit & (exact >= exact.dtype.type(lo))
+    if hi is not None:
+        hi = math.floor(hi)
+        if hi < info.min:
+            return np.zeros(len(exact), dtype=bool)
+        if hi < info.max:
+            hit = hit & (exact <= exact.dtype.type(hi))
+    return hit
 
 
 def axis_mask(col: Column, items: list) -> np.ndarray:
@@ -212,6 +285,9 @@ def axis_mask(col: Column, items: list) -> np.ndarray:
             mask |= col.missing
             continue
         lo, hi = _exact_end(item[0], col), _exact_end(item[1], col)
+        if col.exact is not None:
+            mask |= _integer_hit(col, lo, hi)
+            continue
         v = col.values
         if present is None:
             present = ~col.missing
@@ -239,14 +315,37 @@ class MaskEvaluator:
         #: False until the first update: the mask above is a placeholder
         self.evaluated = False
 
+    def prepare(self, ranges: Ranges) -> None:
+        """Evaluate a selection without applying it (so a failure leaves everything as it was).
+
+        The next :meth:`update` with the same selection reuses the result.
+        """
+        parts = {}
+        for axis, items in ranges.items():
+            if self.ranges.get(axis) == items and axis in self._parts:
+                parts[axis] = self._parts[axis]
+            else:
+                try:
+                    parts[axis] = axis_mask(self.columns[axis], items)
+                except (ArithmeticError, TypeError, ValueError) as err:
+                    raise SelectionError(
+                        f"selection on {axis!r} cannot be evaluated: {type(err).__name__}: {err}"
+                    ) from None
+        self._pending = ({k: list(v) for k, v in ranges.items()}, parts)
+
     def update(self, ranges: Ranges) -> np.ndarray:
         """Apply a normalised selection; only axes whose items changed are recomputed."""
-        for axis in list(self._parts):
-            if axis not in ranges:
-                del self._parts[axis]
-        for axis, items in ranges.items():
-            if self.ranges.get(axis) != items or axis not in self._parts:
-                self._parts[axis] = axis_mask(self.columns[axis], items)
+        pending = getattr(self, "_pending", None)
+        self._pending = None
+        if pending is not None and pending[0] == ranges:
+            self._parts = dict(pending[1])
+        else:
+            for axis in list(self._parts):
+                if axis not in ranges:
+                    del self._parts[axis]
+            for axis, items in ranges.items():
+                if self.ranges.get(axis) != items or axis not in self._parts:
+                    self._parts[axis] = axis_mask(self.columns[axis], items)
         self.ranges = {k: list(v) for k, v in ranges.items()}
         parts = list(self._parts.values())
         if not parts:
@@ -269,7 +368,12 @@ def pack(mask: np.ndarray) -> bytes:
 
 
 # -- selection as code --------------------------------------------------------------------------------
-def _quote(col: Column) -> str:
+def _quote(col: Column, others=()) -> str:
+    """The column's label quoted for DataFrame.query, or SelectionError when query cannot name it.
+
+    ``others`` are all column labels of the table: the name is tried on a one-row table with those
+    labels, so a name pandas would read as another column (or not at all) is refused.
+    """
     label = col.source
     if not isinstance(label, str):
         raise SelectionError(
@@ -281,6 +385,24 @@ def _quote(col: Column) -> str:
         )
     if "`" in label:
         raise SelectionError(f"column {label!r}: a name with a backtick cannot be quoted in DataFrame.query")
+    odd = [ch for ch in label if unicodedata.category(ch)[0] in "CMZ" and ch != " "]
+    if odd or not label.strip():
+        what = f"the character {odd[0]!r}" if odd else "nothing but spaces"
+        raise SelectionError(
+            f"column {label!r}: the name holds {what}, which DataFrame.query cannot name; rename the column"
+        )
+    labels = list(others) if others else [label]
+    if labels.count(label) != 1:
+        raise SelectionError(f"column {label!r}: the name appears more than once, so query cannot name it")
+    probe = pd.DataFrame([list(range(len(labels)))], columns=pd.Index(labels, dtype=object))
+    try:
+        found = len(probe.query(f"`{label}` == {labels.index(label)}")) == 1
+    except Exception:
+        found = False
+    if not found:
+        raise SelectionError(
+            f"column {label!r}: DataFrame.query cannot tell this name from the others; rename the column"
+        )
     return f"`{label}`"
 
 
@@ -289,17 +411,35 @@ def _literal(value, col: Column) -> str:
         return repr(pd.Timestamp(value).isoformat())
     if col.kind == "timedelta":
         return repr(str(pd.Timedelta(int(round(value * 1e9)), unit="ns")))
+    if isinstance(value, int):
+        return repr(value)
     return repr(float(value))
 
 
-def axis_query(col: Column, items: list) -> str:
+def _label_literal(value, col: Column):
+    """A Python literal for one category value as DataFrame.query compares it, or SelectionError."""
+    if isinstance(value, np.generic):
+        value = value.item()
+    if isinstance(value, str | bool | int):
+        return value
+    if isinstance(value, float) and math.isfinite(value):
+        return value
+    if isinstance(value, pd.Timestamp | _dt.datetime):
+        return str(pd.Timestamp(value))  # query compares a categorical of dates with their text
+    raise SelectionError(
+        f"column {col.name!r}: its category {value!r} ({type(value).__name__}) cannot be written in a "
+        "DataFrame.query expression"
+    )
+
+
+def axis_query(col: Column, items: list, others=()) -> str:
     """A DataFrame.query expression for one axis's items (OR of its parts)."""
-    name = _quote(col)
+    name = _quote(col, others)
     parts = []
     if col.kind in ("category", "boolean"):
         picked = [col.raw_labels[col.labels.index(i)] for i in items if i is not None]
         if picked:
-            values = [v.item() if isinstance(v, np.generic) else v for v in picked]
+            values = [_label_literal(v, col) for v in picked]
             parts.append(f"{name} in {values!r}")
     else:
         for lo, hi in (i for i in items if i is not None):
@@ -314,15 +454,25 @@ def axis_query(col: Column, items: list) -> str:
     return " or ".join(f"({p})" for p in parts)
 
 
-def to_query(ranges: Ranges, columns: Mapping[str, Column]) -> str:
+def to_query(ranges: Ranges, columns: Mapping[str, Column], others=()) -> str:
     """A pandas ``DataFrame.query`` expression that picks exactly the rows of a selection.
 
-    Axes combine with ``and``, items on one axis with ``or``; an empty selection gives
-    ``"index == index"`` (every row).
+    Axes combine with ``and``, items on one axis with ``or``. An empty selection gives an expression
+    true for every row (``isna() | notna()`` of the first axis query can name). ``others`` are all
+    column labels of the table, so that names pandas would confuse are refused.
+    Raises :class:`SelectionError` naming the column when query cannot express the selection.
     """
-    parts = [axis_query(columns[axis], items) for axis, items in ranges.items() if items]
+    parts = [axis_query(columns[axis], items, others) for axis, items in ranges.items() if items]
     if not parts:
-        return "index == index"
+        errors = []
+        for col in columns.values():
+            try:
+                name = _quote(col, others)
+            except SelectionError as err:
+                errors.append(str(err))
+                continue
+            return f"{name}.isna() | {name}.notna()"
+        raise SelectionError("no axis can be named in DataFrame.query: " + "; ".join(errors))
     if len(parts) == 1:
         return parts[0]
     return " and ".join(f"({p})" for p in parts)

@@ -16,6 +16,7 @@ import pandas as pd
 import traitlets as t
 
 from . import contrast, export, measures, ordering
+from .carryover import carry_over
 from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
 from .selection import MaskEvaluator, SelectionError, normalise, pack, to_query
 
@@ -96,11 +97,18 @@ class AxesWidget(anywidget.AnyWidget):
         self._axes_arg = axes
         self._callbacks: list[list] = []  # [callback, min_interval_while_dragging, last_call_time]
         self._was_dragging = False
-        self._load(data, axes, names)
-        self.order = list(self._columns)
-        self._apply({})
+        frame, source, columns = _prepare(data, axes, names)
+        view = {**self._view(), "order": list(columns)}
+        notes = []
         if resume is not None:
-            self._take_over(resume)
+            if not isinstance(resume, AxesWidget):
+                raise TypeError(f"resume= takes an AxesWidget, got {type(resume).__name__}")
+            view, notes = carry_over(resume._view(), resume._columns, columns, len(frame))
+        self._switch(frame, source, columns, view)
+        if notes:
+            warnings.warn(
+                "axeswidget: could not take over all of the view: " + "; ".join(notes), stacklevel=2
+            )
         for key, value in options.items():
             if key not in _OPTIONS:
                 raise TypeError(
@@ -110,57 +118,51 @@ class AxesWidget(anywidget.AnyWidget):
         if ranges:
             self.ranges = ranges
 
-    def _take_over(self, other) -> None:
-        """Adopt the view of another widget (order, ranges, flips, options) where it fits this data."""
-        if not isinstance(other, AxesWidget):
-            raise TypeError(f"resume= takes an AxesWidget, got {type(other).__name__}")
-        dropped = []
-        for key in _OPTIONS:  # one by one, outside the hold below: a bad value raises at once
-            try:
-                setattr(self, key, getattr(other, key))
-            except t.TraitError:
-                dropped.append(key)
-        with self.hold_trait_notifications():
-            self.order = [a for a in other.order if a in self._columns] + [
-                a for a in self._columns if a not in other.order
-            ]
-            self.flipped = [a for a in other.flipped if a in self._columns]
-            kept = {}
-            for axis, items in other.ranges.items():
-                col = self._columns.get(axis)
-                same_kind = col is not None and col.kind == other._columns[axis].kind
-                clipped = _clip_items(items, col, clip=False) if same_kind else []
-                if clipped:
-                    kept[axis] = clipped
-                else:
-                    dropped.append(axis)
-            self.ranges = kept
-            saved = {}
-            for name, sel in other.saved.items():
-                try:
-                    saved[name] = normalise(sel, self._columns)
-                except SelectionError:
-                    dropped.append(f"saved selection {name!r}")
-            self.saved = saved
-        if dropped:
-            warnings.warn(f"axeswidget: could not take over: {', '.join(map(str, dropped))}", stacklevel=3)
+    def _view(self) -> dict:
+        """The state a data swap or ``resume=`` carries over (copies of the trait values)."""
+        view = {key: getattr(self, key) for key in _VIEW + _OPTIONS}
+        view["ranges"] = {k: list(v) for k, v in view["ranges"].items()}
+        view["saved"] = {k: {a: list(i) for a, i in v.items()} for k, v in view["saved"].items()}
+        return {k: list(v) if isinstance(v, list) else v for k, v in view.items()}
 
-    def _load(self, data, axes, names=None, frame=None) -> None:
-        frame = to_frame(data, names) if frame is None else frame
-        columns = encode_frame(frame, axes)
-        self._source = None if isinstance(data, pd.DataFrame) else data
-        self._frame = frame
-        self._columns = columns
-        self._evaluator = MaskEvaluator(self._columns, len(self._frame))
-        self.table = table_trait(self._columns, len(self._frame))
+    def _switch(self, frame: pd.DataFrame, source, columns: dict, view: dict) -> None:
+        """Show new columns with a view made for them, all at once; on any error nothing changes."""
+        attrs = ("_frame", "_source", "_columns", "_evaluator")
+        before_attrs = {a: getattr(self, a, None) for a in attrs}
+        before = self._view() if before_attrs["_columns"] is not None else None
+        before_wire = (self.table, self.mask_bits, self.count)
+        try:
+            for col in columns.values():
+                want = col.name in view["log_axes"]
+                if col.log != want:
+                    col.log = want
+                    col.encode()
+            self._frame, self._source, self._columns = frame, source, columns
+            self._evaluator = MaskEvaluator(columns, len(frame))
+            with self.hold_trait_notifications():
+                self.table = table_trait(columns, len(frame))
+                for key in _VIEW + _OPTIONS:
+                    setattr(self, key, view[key])
+            self._apply(self.ranges)
+        except BaseException:
+            for a, v in before_attrs.items():
+                setattr(self, a, v)
+            if before is not None:
+                with self.hold_trait_notifications():
+                    for key in _VIEW + _OPTIONS:
+                        setattr(self, key, before[key])
+                    self.table, self.mask_bits, self.count = before_wire
+            raise
 
     # -- traits ------------------------------------------------------------------------------------
     @t.validate("ranges")
     def _check_ranges(self, proposal):
         try:
-            return normalise(proposal["value"], self._columns)
+            clean = normalise(proposal["value"], self._columns)
+            self._evaluator.prepare(clean)  # evaluated before the trait changes: a failure changes nothing
         except SelectionError as err:
             raise t.TraitError(str(err)) from None
+        return clean
 
     @t.validate("order")
     def _check_order(self, proposal):
@@ -172,7 +174,17 @@ class AxesWidget(anywidget.AnyWidget):
         if len(set(order)) != len(order):
             twice = sorted({a for a in order if order.count(a) > 1})
             raise t.TraitError("order names an axis twice: " + ", ".join(twice))
+        missing = [a for a in self._columns if a not in order]
+        if missing:
+            raise t.TraitError("order must name every axis once; it lacks: " + ", ".join(map(repr, missing)))
         return order
+
+    @t.validate("height")
+    def _check_height(self, proposal):
+        value = int(proposal["value"])
+        if not HEIGHT_MIN <= value <= HEIGHT_MAX:
+            raise t.TraitError(f"height must be {HEIGHT_MIN}..{HEIGHT_MAX} pixels, got {value}")
+        return value
 
     @t.validate("color_by", "bundle_by")
     def _check_axis_option(self, proposal):
@@ -288,50 +300,33 @@ class AxesWidget(anywidget.AnyWidget):
 
     @property
     def data(self) -> pd.DataFrame:
-        """The table the widget shows, as a pandas DataFrame (the widget's own snapshot)."""
-        return self._frame
+        """A copy of the table the widget shows, as a pandas DataFrame (editing it changes nothing here)."""
+        return self._frame.copy(deep=True)
 
     @data.setter
     def data(self, new) -> None:
-        """Show a new table; ranges and order on columns that still exist are kept (ranges clipped)."""
-        old_ranges, old_order, old_log = dict(self.ranges), list(self.order), list(self.log_axes)
-        old_cols = self._columns
+        """Show a new table; the view is carried over where it fits (see ``carryover``), all or nothing."""
         axes = self._axes_arg
-        dropped = []
+        notes = []
         frame = to_frame(new)
         if axes is not None:  # axes named at construction that the new table lacks are dropped too
             present = {display_name(c) for c in frame.columns} | set(frame.columns)
-            dropped = [display_name(a) for a in axes if a not in present]
+            gone = [display_name(a) for a in axes if a not in present]
             axes = [a for a in axes if a in present]
             if not axes:
                 raise ColumnError(
                     f"the new table has none of the axes {', '.join(map(repr, self._axes_arg))}"
                 )
-        self._load(new, axes, frame=frame)
-        kept = {}
-        for axis, items in old_ranges.items():
-            col = self._columns.get(axis)
-            if col is None or col.kind != old_cols[axis].kind:
-                dropped.append(axis)
-                continue
-            clipped = _clip_items(items, col)
-            if clipped:
-                kept[axis] = clipped
-            else:
-                dropped.append(axis)
-        order = [a for a in old_order if a in self._columns]
-        order += [a for a in self._columns if a not in order]
-        with self.hold_trait_notifications():
-            self.log_axes = [a for a in old_log if a in self._columns and self._columns[a].lo > 0]
-            self.order = order
-            self.ranges = kept
-            self._apply(self.ranges)
-        if dropped:
-            warnings.warn(
-                "axeswidget: dropped axes or selections that are gone, changed kind or fall outside the "
-                f"new data: {', '.join(map(repr, dict.fromkeys(dropped)))}",
-                stacklevel=2,
-            )
+            if gone:
+                notes.append(
+                    "axes named at construction missing from the new table: " + ", ".join(map(repr, gone))
+                )
+        frame, source, columns = _prepare(new, axes, frame=frame)
+        view, more = carry_over(self._view(), self._columns, columns, len(frame))
+        self._switch(frame, source, columns, view)
+        notes += more
+        if notes:
+            warnings.warn("axeswidget: the new data changes the view: " + "; ".join(notes), stacklevel=2)
 
     # -- axis order ----------------------------------------------------------------------------------
     def association(self, metric: str = "spearman", *, max_rows: int | None = 200_000, seed: int = 0):
@@ -407,7 +402,7 @@ class AxesWidget(anywidget.AnyWidget):
         ``frame.query(w.to_query())`` gives the same rows as ``w.selected`` for a pandas frame.
         """
         try:
-            return to_query(self.ranges, self._columns)
+            return to_query(self.ranges, self._columns, list(self._frame.columns))
         except SelectionError as err:
             raise ValueError(str(err)) from None
 
@@ -522,31 +517,26 @@ _OPTIONS = (
     "log_axes",
     "height",
 )
+#: the traits a data swap or ``resume=`` carries over besides the options
+_VIEW = ("order", "ranges", "flipped", "saved", "pinned")
+HEIGHT_MIN, HEIGHT_MAX = 120, 4000
 
 
-def _clip_items(items: list, col: Column, clip: bool = True) -> list:
-    """Items of an old selection that still make sense on a new column.
+def _snapshot(data):
+    """The widget's own copy of the user's table object (for ``selected`` in the input's type)."""
+    mod = type(data).__module__.split(".")[0]
+    if isinstance(data, np.ndarray):
+        return data.copy()
+    if isinstance(data, dict):
+        return {k: np.array(v, copy=True) for k, v in data.items()}
+    if mod == "polars":
+        return data.clone()  # polars copies on write: later in-place edits of the user's frame stay theirs
+    return data  # pyarrow tables and record batches cannot be edited in place
 
-    Ranges that miss the new domain are dropped; with ``clip`` the others are clipped to it.
-    """
-    out = []
-    for item in items:
-        if item is None:
-            out.append(None)
-        elif isinstance(item, str):
-            if item in (col.labels or []):
-                out.append(item)
-        elif col.kind in ("number", "integer", "timedelta"):
-            scale = 1e9 if col.kind == "timedelta" else 1.0
-            lo, hi = col.lo / scale, col.hi / scale
-            a = item[0] if item[0] is None else max(item[0], lo)
-            b = item[1] if item[1] is None else min(item[1], hi)
-            if (
-                (a is None or b is None or a <= b)
-                and not (a is not None and a > hi)
-                and not (b is not None and b < lo)
-            ):
-                out.append([a, b] if clip else list(item))
-        else:
-            out.append(item)
-    return out
+
+def _prepare(data, axes, names=None, frame=None):
+    """Read and encode a table without touching any widget: (frame, source snapshot, columns)."""
+    frame = to_frame(data, names) if frame is None else frame
+    columns = encode_frame(frame, axes)
+    source = None if isinstance(data, pd.DataFrame) else _snapshot(data)
+    return frame, source, columns
