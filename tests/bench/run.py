@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import platform
 import time
 from pathlib import Path
@@ -228,6 +229,48 @@ def bench_density(rows: int, cols: int, bins: int = 128) -> dict:
     }
 
 
+def summary(results: dict) -> list[dict]:
+    """The targets of the fair ratios, with the worst figure measured at the largest size of each."""
+
+    def worst(rows: list[dict], key: str) -> dict | None:
+        rows = [r for r in rows if r.get(key) is not None and "error" not in r]
+        if not rows:
+            return None
+        top = max(r["rows"] for r in rows)
+        r = max((r for r in rows if r["rows"] == top), key=lambda r: r[key])
+        return {"rows": r["rows"], "cols": r["cols"], "ratio": r[key]}
+
+    sizes = results.get("browser", {}).get("sizes", [])
+    lines = [r for r in sizes if r.get("lines_drawn_by") == "workers"] or sizes
+    out = [
+        {
+            "figure": "mask, widget / same-work numpy",
+            "target": 1.0,
+            **(worst(results["mask"], "ratio") or {}),
+        },
+        {
+            "figure": "density pair counts (Python), density.py / bare numpy.bincount",
+            "target": 1.0,
+            **(worst(results["density"], "ratio") or {}),
+        },
+        {
+            "figure": "lines (browser), widget x workers / bare one-core accumulation loop",
+            "target": 1.0,
+            **(worst(lines, "lines_per_core") or {}),
+        },
+        {
+            "figure": "density pass (browser), widget / bare bincount-like loop",
+            "target": 1.0,
+            **(worst(sizes, "density_ratio") or {}),
+        },
+    ]
+    print("\nsummary (worst ratio at the largest size measured; target <= 1.0x)")
+    for t in out:
+        got = f"{t['ratio']:.2f}x at {t['rows']:,} x {t['cols']}" if "ratio" in t else "not measured"
+        print(f"  {t['figure']:<72} {got}")
+    return out
+
+
 def main(argv=None) -> dict:
     ap = argparse.ArgumentParser(description=__doc__)
     ap.add_argument("--quick", action="store_true", help="only the 10^4 and 10^5 sizes (10 and 20 axes)")
@@ -238,6 +281,8 @@ def main(argv=None) -> dict:
         sizes = [s for s in sizes if s[0] < 10**6]
     results = {
         "machine": f"{platform.machine()} {platform.processor() or ''}".strip(),
+        "cores": os.cpu_count(),
+        "quick": args.quick,
         "mask": [],
         "wire": [],
     }
@@ -296,6 +341,7 @@ def main(argv=None) -> dict:
         from tests.bench import browser
 
         results["browser"] = browser.run(quick=args.quick)
+    results["targets"] = summary(results)
     OUT.mkdir(exist_ok=True)
     (OUT / "bench.json").write_text(json.dumps(results, indent=2))
     print(f"\nwritten to {OUT / 'bench.json'}")
