@@ -264,7 +264,12 @@ def summary(results: dict) -> list[dict]:
             **(worst(sizes, "density_ratio") or {}),
         },
     ]
-    print("\nsummary (worst ratio at the largest size measured; target <= 1.0x)")
+    start, end = results["load_average_at_start"][0], results["load_average_at_end"][0]
+    print(
+        f"\nsummary (worst ratio at the largest size measured; target <= 1.0x). {results['cores']} cores;"
+        f" 1-minute load average {start:.1f} at the start, {end:.1f} at the end (per-core figures assume"
+        " the workers had a core each)"
+    )
     for t in out:
         got = f"{t['ratio']:.2f}x at {t['rows']:,} x {t['cols']}" if "ratio" in t else "not measured"
         print(f"  {t['figure']:<72} {got}")
@@ -282,6 +287,7 @@ def main(argv=None) -> dict:
     results = {
         "machine": f"{platform.machine()} {platform.processor() or ''}".strip(),
         "cores": os.cpu_count(),
+        "load_average_at_start": os.getloadavg(),
         "quick": args.quick,
         "mask": [],
         "wire": [],
@@ -341,6 +347,7 @@ def main(argv=None) -> dict:
         from tests.bench import browser
 
         results["browser"] = browser.run(quick=args.quick)
+    results["load_average_at_end"] = os.getloadavg()
     results["targets"] = summary(results)
     OUT.mkdir(exist_ok=True)
     (OUT / "bench.json").write_text(json.dumps(results, indent=2))
