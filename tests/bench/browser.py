@@ -52,8 +52,8 @@ STATIC = Path(aw.__file__).parent / "static"
 BASELINES = ROOT / "build" / "bench" / "baselines.js"
 NOTE = "CPU figures: headless Chromium, --disable-gpu, canvases rendered in software"
 DRIVER = f"Playwright sync API, Chromium at {CHROMIUM}"
-#: how long the first full draw of the large table may take before the bench falls back to a smaller one
-LARGE_LOAD_TIMEOUT_S = 120.0
+#: how long the first full draw may take before the size is reported as not drawn
+FIRST_DRAW_TIMEOUT_S = 120.0
 
 
 def unavailable() -> str | None:
@@ -144,9 +144,6 @@ class Page:
     def has_api(self) -> bool:
         return bool(self.js("() => !!(document.querySelector('.axw-root') || {}).__axw"))
 
-    def has_drawn_hook(self) -> bool:
-        return self.js("() => document.querySelector('.axw-root')?.dataset.drawn !== undefined")
-
     def wait_first_draw(self, timeout_s: float) -> bool:
         """Wait until ``dataset.drawn >= 1``; False when the hook is missing or time ran out."""
         if not self.has_api():
@@ -181,10 +178,6 @@ class Page:
             ms = float(self.js("() => document.querySelector('.axw-root').__axw.redraw()"))
             best = ms if best is None else min(best, ms)
         return best
-
-    def draw_ms_hook(self) -> float | None:
-        v = self.js("() => document.querySelector('.axw-root')?.dataset.drawMs")
-        return None if v is None else float(v)
 
     def geometry(self) -> dict:
         """Lines canvas size in device pixels, device pixel ratio, axis x positions, plot band, lane."""
@@ -298,7 +291,7 @@ def bench_size(browser, server, rows: int, cols: int, drag: bool = False) -> dic
     p = Page(browser, server, w, f"size-{rows}-{cols}")
     out: dict = {"rows": rows, "cols": cols, "missing": []}
     try:
-        out["drew"] = p.wait_first_draw(LARGE_LOAD_TIMEOUT_S)
+        out["drew"] = p.wait_first_draw(FIRST_DRAW_TIMEOUT_S)
         out["open_wall_s"] = time.perf_counter() - t0
         t = p.times()
         out["times_ms"] = t
