@@ -492,9 +492,9 @@ def _run_all(browser, server, quick: bool, results: dict) -> None:
     results["sizes"] = []
     for rows, cols in sizes:
         box: dict = {}
-        r = _guard(
-            box, "size", lambda r=rows, c=cols: bench_size(browser, server, r, c, drag=(r, c) == largest)
-        )
+        drag = (rows, cols) == largest
+        key = f"{rows} x {cols}"
+        r = _guard(box, key, lambda r=rows, c=cols, d=drag: bench_size(browser, server, r, c, drag=d))
         r.setdefault("rows", rows)
         r.setdefault("cols", cols)
         results["sizes"].append(r)
