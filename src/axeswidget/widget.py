@@ -271,7 +271,7 @@ class AxesWidget(anywidget.AnyWidget):
             if changed:
                 mask = self._evaluator.update(ranges)
                 self.mask_bits = pack(mask)
-                self.count = int(mask.sum())
+                self.count = int(np.count_nonzero(mask))
             self.answered_seq = self.edit_seq
         self._notify(changed)
 
