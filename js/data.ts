@@ -1,9 +1,8 @@
 // Decode the kernel's `table` trait into typed columns, without copying the binary buffers.
 
-/** Largest quantisation code; codes 0..CODE_MAX map linearly (or logarithmically) onto [lo, hi]. */
-export const CODE_MAX = 65534;
-/** Code reserved for a missing value. */
-export const CODE_MISSING = 65535;
+import { CODE_MAX, CODE_MISSING } from "./wire";
+
+export { CODE_MAX, CODE_MISSING };
 
 export type Kind = "number" | "integer" | "category" | "boolean" | "datetime" | "timedelta";
 

@@ -1,7 +1,8 @@
 // Canvas painting: the lines layer and the overlay (axes, ticks, headers, lanes, selections).
 
 import { cssToRgb, luminance } from "./colour";
-import { CODE_MISSING, type Table } from "./data";
+import { type Table } from "./data";
+import { CODE_COUNT, CODE_MAX, CODE_MISSING, HIST_SHIFT } from "./wire";
 import type { Layout } from "./layout";
 import { AxisScale, formatValue } from "./scales";
 import type { Sel } from "./selection";
@@ -47,14 +48,14 @@ export function autoAlpha(n: number): number {
 }
 
 /**
- * Per axis, two lookup tables over the 65536 wire codes: a row's y is `base[code] + spread[row] *
+ * Per axis, two lookup tables over every wire code: a row's y is `base[code] + spread[row] *
  * height[code]`. Numeric axes have height 0; category bands spread their rows over the band;
  * the missing code maps to the lane.
  */
 export function rowPlacement(scales: AxisScale[], layout: Layout): { base: Float32Array; height: Float32Array }[] {
   return scales.map((sc) => {
-    const base = new Float32Array(65536);
-    const height = new Float32Array(65536);
+    const base = new Float32Array(CODE_COUNT);
+    const height = new Float32Array(CODE_COUNT);
     if (sc.categorical) {
       sc.bands.forEach((b, c) => {
         const padding = Math.min(2, (b.y1 - b.y0) / 4);
@@ -62,7 +63,7 @@ export function rowPlacement(scales: AxisScale[], layout: Layout): { base: Float
         height[c] = Math.max(0, b.y1 - b.y0 - 2 * padding);
       });
     } else {
-      for (let c = 0; c < 65535; c++) base[c] = sc.codePixel(c);
+      for (let c = 0; c < CODE_MISSING; c++) base[c] = sc.codePixel(c);
     }
     base[CODE_MISSING] = layout.laneY;
     return { base, height };
@@ -179,9 +180,9 @@ function drawHistogram(
   ctx.save();
   for (let b = 0; b < bins; b++) {
     if (!all[b]) continue;
-    // bin b covers codes [b, b+1) x 1024: its pixel span on this (maybe flipped) axis
-    const y0 = sc.codePixel(Math.min(65534, b * 1024));
-    const y1 = sc.codePixel(Math.min(65534, (b + 1) * 1024));
+    // bin b covers codes [b, b+1) << HIST_SHIFT: its pixel span on this (maybe flipped) axis
+    const y0 = sc.codePixel(Math.min(CODE_MAX, b << HIST_SHIFT));
+    const y1 = sc.codePixel(Math.min(CODE_MAX, (b + 1) << HIST_SHIFT));
     const top = Math.min(y0, y1);
     const hh = Math.max(1, Math.abs(y1 - y0) - 0.5 || h);
     ctx.globalAlpha = 0.35;

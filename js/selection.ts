@@ -6,6 +6,7 @@
 // and null for the missing-values lane.
 
 import { bandCount, CODE_MAX, CODE_MISSING, fraction, isCategorical, type AxisData, type Table } from "./data";
+import { CODE_COUNT } from "./wire";
 
 export type Span = [number, number];
 
@@ -147,8 +148,8 @@ export function previewMask(table: Table, sel: Sel): { mask: Uint8Array; count: 
   for (const [name, s] of Object.entries(sel)) {
     const axis = table.byName.get(name);
     if (!axis || isEmpty(s)) continue;
-    // a lookup table over all 65536 codes: is this code picked?
-    const lut = new Uint8Array(65536);
+    // a lookup table over every code: is this code picked?
+    const lut = new Uint8Array(CODE_COUNT);
     if (isCategorical(axis)) {
       const k = bandCount(axis);
       for (const b of s.bands) if (b < k) lut[b] = 1;

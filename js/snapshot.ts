@@ -8,11 +8,10 @@
 // answer to an id and ignores the rest (several browser tabs may show the same kernel).
 
 import { readTheme } from "./draw";
+// page -> server websocket messages above 10 MiB are dropped silently: PNG_MAX_BYTES stays well below
+import { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE } from "./wire";
 
-export const PNG_MESSAGE = "axw:png";
-/** Page -> server websocket messages above 10 MiB are dropped silently: stay well below. */
-export const PNG_MAX_BYTES = 8 * 1024 * 1024;
-export const PNG_MAX_SCALE = 4;
+export { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE };
 
 type Handler = (content: any, buffers?: unknown[]) => void;
 

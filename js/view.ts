@@ -9,6 +9,7 @@ import { LinePainter, type Mode, type PaintJob, type PaintResult } from "./paint
 import { computeLayout, type Layout } from "./layout";
 import { formatValue, type AxisScale } from "./scales";
 import { fromTrait, previewMask, selKey, toTrait, type Sel, type TraitRanges } from "./selection";
+import { DENSITY_ROWS } from "./wire";
 
 /** The slice of the anywidget model API that the view uses (a stand-in can provide it in tests). */
 export interface Model {
@@ -20,8 +21,8 @@ export interface Model {
 }
 
 const SYNC_MS = 60;
-/** Above this many rows, view_mode "auto" draws the density view. */
-export const DENSITY_ROWS = 200_000;
+/** Above this many rows, view_mode "auto" draws the density view (the wire contract's). */
+export { DENSITY_ROWS };
 
 export class View {
   readonly root: HTMLDivElement;
