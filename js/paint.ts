@@ -51,6 +51,8 @@ export interface PaintResult {
   /** per axis in the layout: selected-row counts in HIST_BINS bins along the axis (numeric axes) */
   histSelected: Uint32Array[];
   histAll: Uint32Array[];
+  /** the bundling the lines were drawn with (centres in CSS px per gap and slot), for hovering */
+  bundle: { axis: number; strength: number; centres: Float64Array } | null;
 }
 
 /** What one painting pass works with. */
@@ -62,6 +64,8 @@ interface Pass {
   fad: Accumulator;
   histSelected: Uint32Array[];
   histAll: Uint32Array[];
+  /** set by the lines pass when it bundles (centres in device px) */
+  bundle: LinesSetup["bundle"];
   /** run a body over all rows in chunks; false when the job was abandoned */
   chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>;
 }
@@ -178,15 +182,17 @@ export class LinePainter {
       return true;
     };
 
+    let bundle: PaintResult["bundle"] = null;
     if (k >= 2 && n > 0) {
       const xs = new Float32Array(job.layout.slots.map((s) => s.x * job.dpr));
-      const pass: Pass = { job, codes, xs, sel, fad, histSelected, histAll, chunked };
+      const pass: Pass = { job, codes, xs, sel, fad, histSelected, histAll, bundle: null, chunked };
       const ok = job.mode === "density" ? await this.density(pass) : await this.lines(pass);
       if (!ok || token !== this.token) return;
+      if (pass.bundle) bundle = { ...pass.bundle, centres: pass.bundle.centres.map((y) => y / job.dpr) };
     }
     show();
     this.onProgress(null);
-    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers });
+    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers, bundle });
   }
 
   private async lines(pass: Pass): Promise<boolean> {
@@ -215,6 +221,7 @@ export class LinePainter {
       if (!ok) return false;
       for (let a = 0; a + 1 < k; a++) for (let g = 0; g < BUNDLE_SLOTS; g++) if (counts[g]) sums[a * BUNDLE_SLOTS + g] /= counts[g];
       setup.bundle = { axis, strength: job.bundle.strength, centres: sums };
+      pass.bundle = setup.bundle;
     }
     const share: [number, number] = [job.bundle ? 0.2 : 0, 1];
     const pool = this.workerPool(job.table.n * k);

@@ -18,22 +18,35 @@ export interface AxisSel {
   lane: boolean;
 }
 
+/**
+ * Selections are keyed by axis name, and axis names come from the data: any name, `__proto__` and
+ * `constructor` included. So these records have no prototype (see `record`) and are read with
+ * `own` only.
+ */
 export type Sel = Record<string, AxisSel>;
 export type TraitItem = [number | string | null, number | string | null] | string | null | { rest: true };
 export type TraitRanges = Record<string, TraitItem[]>;
+
+/** An empty record keyed by data (no prototype: no inherited keys, `__proto__` is a plain key). */
+export const record = <T>(): Record<string, T> => Object.create(null);
+
+/** The value under an own key of a record keyed by data, or undefined. */
+export function own<T>(rec: Record<string, T> | null | undefined, key: string): T | undefined {
+  return rec && Object.prototype.hasOwnProperty.call(rec, key) ? rec[key] : undefined;
+}
 
 export const emptyAxis = (): AxisSel => ({ spans: [], bands: [], lane: false });
 export const isEmpty = (s: AxisSel | undefined) => !s || (!s.spans.length && !s.bands.length && !s.lane);
 
 export function cloneSel(sel: Sel): Sel {
-  const out: Sel = {};
+  const out: Sel = record();
   for (const [k, v] of Object.entries(sel)) out[k] = { spans: v.spans.map((s) => [s[0], s[1]] as Span), bands: [...v.bands], lane: v.lane };
   return out;
 }
 
 /** Sorted spans with overlaps merged, bands sorted and unique; empty axes dropped. */
 export function tidy(sel: Sel): Sel {
-  const out: Sel = {};
+  const out: Sel = record();
   for (const [axis, s] of Object.entries(sel)) {
     const sorted = s.spans.map(([a, b]) => (a <= b ? [a, b] : [b, a]) as Span).sort((p, q) => p[0] - q[0]);
     const merged: Span[] = [];
@@ -82,7 +95,7 @@ function unitsToEnd(a: AxisData, v: number, side: 0 | 1): number | string | null
 }
 
 export function fromTrait(table: Table, raw: TraitRanges | null | undefined): Sel {
-  const out: Sel = {};
+  const out: Sel = record();
   for (const [name, items] of Object.entries(raw ?? {})) {
     const a = table.byName.get(name);
     if (!a || !Array.isArray(items)) continue;
@@ -107,13 +120,15 @@ export function fromTrait(table: Table, raw: TraitRanges | null | undefined): Se
  * previous trait items verbatim, so values the page cannot represent exactly (nanoseconds) survive.
  */
 export function toTrait(table: Table, sel: Sel, previous: TraitRanges | null | undefined): TraitRanges {
-  const out: TraitRanges = {};
+  const out: TraitRanges = record();
   const prevSel = fromTrait(table, previous);
   for (const [name, s] of Object.entries(tidy(sel))) {
     const a = table.byName.get(name);
     if (!a) continue;
-    if (previous?.[name] && prevSel[name] && selKey({ x: prevSel[name] }) === selKey({ x: s })) {
-      out[name] = previous[name];
+    const before = own(previous, name);
+    const beforeSel = own(prevSel, name);
+    if (before && beforeSel && selKey({ x: beforeSel }) === selKey({ x: s })) {
+      out[name] = before;
       continue;
     }
     const items: TraitItem[] = [];

@@ -7,7 +7,8 @@
 // Every page answers through the first live view of the model it holds; the kernel keeps the first
 // answer to an id and ignores the rest (several browser tabs may show the same kernel).
 
-import { readTheme } from "./draw";
+import type { WidgetModel } from "./model";
+import { readTheme } from "./theme";
 // page -> server websocket messages above 10 MiB are dropped silently: PNG_MAX_BYTES stays well below
 import { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE } from "./wire";
 
@@ -16,14 +17,7 @@ export { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE };
 type Handler = (content: any, buffers?: unknown[]) => void;
 
 /** The parts of the anywidget model that sharing needs. */
-export interface SharingModel {
-  get(name: string): any;
-  set(name: string, value: unknown): void;
-  save_changes(): void;
-  on(event: string, cb: Handler): void;
-  off(event: string, cb: Handler): void;
-  send?(content: unknown, callbacks?: unknown, buffers?: ArrayBuffer[]): void;
-}
+export type SharingModel = WidgetModel;
 
 /** Live views in this page, per model, oldest first. */
 const liveViews = new WeakMap<object, string[]>();
@@ -35,7 +29,7 @@ function randomId(): string {
 }
 
 function setViews(model: SharingModel, change: (ids: string[]) => string[]) {
-  const now = (model.get("views") as string[] | undefined) ?? [];
+  const now = model.get("views") ?? [];
   model.set("views", change(now.slice()));
   model.save_changes();
 }

@@ -1,40 +1,14 @@
-// Canvas painting: the lines layer and the overlay (axes, ticks, headers, lanes, selections).
+// The overlay canvas: axes, ticks, headers, missing lanes, the selection, histograms and readouts.
+// (The lines layer is paint.ts; hovered rows are hover.ts.)
 
-import { cssToRgb, luminance } from "./colour";
 import { type Table } from "./data";
 import { CODE_COUNT, CODE_MAX, CODE_MISSING, HIST_SHIFT } from "./wire";
 import type { Layout } from "./layout";
 import { AxisScale, formatValue } from "./scales";
-import type { Sel } from "./selection";
+import { own, type AxisSel, type Sel } from "./selection";
+import type { Theme } from "./theme";
 
-export interface Theme {
-  fg: string;
-  muted: string;
-  bg: string;
-  line: string;
-  faded: string;
-  band: string;
-  bandEdge: string;
-  font: string;
-}
-
-/** Colours from the host's CSS variables (JupyterLab's), with fallbacks for other hosts. */
-export function readTheme(el: Element): Theme {
-  const css = getComputedStyle(el);
-  const v = (name: string, fallback: string) => css.getPropertyValue(name).trim() || fallback;
-  const bg = v("--jp-layout-color0", "#ffffff");
-  const dark = luminance(cssToRgb(bg)) < 0.4;
-  return {
-    fg: v("--jp-ui-font-color1", dark ? "#e8e8e8" : "#1f1f1f"),
-    muted: v("--jp-ui-font-color2", dark ? "#a8a8a8" : "#6b6b6b"),
-    bg,
-    line: dark ? "#56B4E9" : "#0072B2", // Okabe–Ito sky blue on dark, blue on light
-    faded: dark ? "#6a6a6a" : "#a0a0a0",
-    band: "rgba(230, 159, 0, 0.24)", // Okabe–Ito orange, translucent
-    bandEdge: "#C98A00",
-    font: v("--jp-ui-font-family", "system-ui, -apple-system, 'Segoe UI', sans-serif"),
-  };
-}
+export { readTheme, type Theme } from "./theme";
 
 export function scalesFor(table: Table, layout: Layout, flipped: Set<string> = new Set()): AxisScale[] {
   // horizontal axes carry their tick labels side by side: leave them more room
@@ -209,7 +183,135 @@ const KIND_MARK: Record<string, string> = {
   timedelta: "dur",
 };
 
-/** Axes, ticks, headers, missing lanes and the selection. */
+/** A category axis: a bar per band on the axis (picked ones wide and tinted), its label on the left. */
+function drawBands(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, s: AxisSel | undefined, x: number, i: number, gap: number, theme: Theme) {
+  beside(ctx, layout, "before");
+  sc.bands.forEach((b, code) => {
+    const picked = s?.bands.includes(code);
+    ctx.fillStyle = picked ? theme.band : theme.fg;
+    ctx.globalAlpha = picked ? 1 : 0.16;
+    ctx.fillRect(x - (picked ? 8 : 3), b.y0, picked ? 16 : 6, b.y1 - b.y0);
+    if (picked) {
+      ctx.strokeStyle = theme.bandEdge;
+      ctx.strokeRect(x - 8, b.y0, 16, b.y1 - b.y0);
+    }
+    ctx.globalAlpha = 1;
+    if (b.y1 - b.y0 >= 9 || sc.bands.length <= 12) {
+      ctx.fillStyle = picked ? theme.fg : theme.muted;
+      ctx.font = `${picked ? "600 " : ""}10px ${theme.font}`;
+      const room = layout.horizontal ? b.y1 - b.y0 + 40 : i === 0 ? x - 10 : Math.max(30, gap * 0.55);
+      label(ctx, fitText(ctx, sc.bandLabel(code), room), x - 7, (b.y0 + b.y1) / 2, theme);
+    }
+  });
+}
+
+/** A numeric axis: the line, its ticks, and the counts of ±inf pinned to its ends. */
+function drawScale(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, x: number, theme: Theme) {
+  ctx.globalAlpha = 0.9;
+  ctx.beginPath();
+  ctx.moveTo(x, layout.top);
+  ctx.lineTo(x, layout.bottom);
+  ctx.stroke();
+  beside(ctx, layout, "before");
+  const ticks = sc.ticks();
+  ticks.values.forEach((v, t) => {
+    const y = Math.round(sc.toPixel(v)) + 0.5;
+    ctx.beginPath();
+    ctx.moveTo(x - 4, y);
+    ctx.lineTo(x, y);
+    ctx.stroke();
+    label(ctx, ticks.labels[t], x - 6, y, theme);
+  });
+}
+
+/** ±inf pinned to the ends of a numeric axis, with their counts. */
+function drawInfinities(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, x: number, theme: Theme) {
+  const [neg, pos] = sc.axis.inf;
+  beside(ctx, layout, "after");
+  if (pos) label(ctx, `+∞ ${pos}`, x + 6, layout.top - 6, theme);
+  if (neg) label(ctx, `−∞ ${neg}`, x + 6, layout.bottom + 8, theme);
+}
+
+/** The ranges picked on a numeric axis: a tinted band each, with its end values beside it. */
+function drawRanges(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, s: AxisSel | undefined, x: number, theme: Theme) {
+  ctx.globalAlpha = 1;
+  for (const [lo, hi] of s?.spans ?? []) {
+    const yHi = sc.toPixel(hi);
+    const yLo = sc.toPixel(lo);
+    const yTop = Math.max(layout.top - 2, Math.min(yHi, yLo));
+    const yBot = Math.min(layout.bottom + 2, Math.max(yHi, yLo));
+    ctx.fillStyle = theme.band;
+    ctx.fillRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
+    ctx.strokeStyle = theme.bandEdge;
+    ctx.strokeRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
+    ctx.fillStyle = theme.fg;
+    ctx.font = `600 10px ${theme.font}`;
+    const hiText = hi === Infinity ? "open" : sc.format(hi);
+    const loText = lo === -Infinity ? "open" : sc.format(lo);
+    // end values on the right of the axis, or on the left where the chart ends
+    const wide = Math.max(ctx.measureText(hiText).width, ctx.measureText(loText).width);
+    const right = layout.horizontal || x + 11 + wide <= layout.width;
+    beside(ctx, layout, right ? "after" : "before");
+    const tx = right ? x + 11 : x - 11;
+    label(ctx, sc.flipped ? loText : hiText, tx, yTop - 1, theme);
+    label(ctx, sc.flipped ? hiText : loText, tx, yBot + 1, theme);
+  }
+}
+
+/** The header: the axis name, and a small mark of its kind (with ↓ when flipped). */
+function drawHeader(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, name: string, x: number, gap: number, theme: Theme) {
+  ctx.globalAlpha = 1;
+  ctx.textAlign = "center";
+  ctx.textBaseline = "middle";
+  ctx.fillStyle = theme.fg;
+  header(ctx, name, x, Math.max(30, gap - 6), theme, layout);
+  ctx.font = `9px ${theme.font}`;
+  ctx.fillStyle = theme.muted;
+  const kind = sc.axis.kind;
+  const mark = (own(KIND_MARK, kind) ?? kind) + (sc.flipped !== layout.horizontal ? " ↓" : "");
+  if (layout.horizontal) {
+    ctx.textAlign = "left";
+    ctx.textBaseline = "top";
+    ctx.fillText(mark, x + 2, 6);
+  } else ctx.fillText(mark, x, 33);
+}
+
+/** The missing-values lane: a box below the axis, filled when picked, with the count of missing values. */
+function drawLane(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, s: AxisSel | undefined, x: number, theme: Theme) {
+  const missing = sc.axis.missing;
+  const lanePicked = !!s?.lane;
+  ctx.globalAlpha = missing || lanePicked ? 0.95 : 0.3;
+  if (lanePicked) {
+    ctx.fillStyle = theme.band;
+    ctx.fillRect(x - 8, layout.laneY - layout.laneHalf, 16, 2 * layout.laneHalf);
+  }
+  ctx.strokeStyle = lanePicked ? theme.bandEdge : theme.muted;
+  ctx.setLineDash(lanePicked ? [] : [2, 2]);
+  ctx.strokeRect(x - 7, layout.laneY - layout.laneHalf, 14, 2 * layout.laneHalf);
+  ctx.setLineDash([]);
+  if (missing) {
+    beside(ctx, layout, "after");
+    ctx.fillStyle = theme.muted;
+    ctx.font = `10px ${theme.font}`;
+    ctx.fillText(`∅ ${formatValue(missing, 1)}`, x + 10, layout.laneY);
+  }
+  ctx.globalAlpha = 1;
+}
+
+/** Rank association between neighbours, midway between their headers. */
+function drawReadouts(ctx: CanvasRenderingContext2D, layout: Layout, readouts: { value: number }[], theme: Theme) {
+  ctx.font = `10px ${theme.font}`;
+  ctx.textAlign = layout.horizontal ? "left" : "center";
+  ctx.textBaseline = "middle";
+  readouts.forEach((r, i) => {
+    if (i + 1 >= layout.slots.length || !isFinite(r.value)) return;
+    const x = (layout.slots[i].x + layout.slots[i + 1].x) / 2;
+    ctx.fillStyle = r.value >= 0 ? theme.line : NEGATIVE;
+    ctx.fillText(`ρ ${r.value >= 0 ? "+" : "−"}${Math.abs(r.value).toFixed(2)}`, x, layout.horizontal ? 60 : 42);
+  });
+}
+
+/** Axes, ticks, headers, missing lanes, the selection, histograms and readouts. */
 export function drawOverlay(
   ctx: CanvasRenderingContext2D,
   layout: Layout,
@@ -224,119 +326,21 @@ export function drawOverlay(
   ctx.textBaseline = "middle";
   layout.slots.forEach((slot, i) => {
     const sc = scales[i];
-    const axis = sc.axis;
-    const s = sel[slot.name];
+    const s = own(sel, slot.name);
     const x = Math.round(slot.x) + 0.5;
     ctx.strokeStyle = theme.fg;
     ctx.fillStyle = theme.muted;
     ctx.lineWidth = 1;
     ctx.font = `10px ${theme.font}`;
-    if (sc.categorical) {
-      // bands: a bar per category on the axis, its label on the left
-      beside(ctx, layout, "before");
-      sc.bands.forEach((b, code) => {
-        const picked = s?.bands.includes(code);
-        ctx.fillStyle = picked ? theme.band : theme.fg;
-        ctx.globalAlpha = picked ? 1 : 0.16;
-        ctx.fillRect(x - (picked ? 8 : 3), b.y0, picked ? 16 : 6, b.y1 - b.y0);
-        if (picked) {
-          ctx.strokeStyle = theme.bandEdge;
-          ctx.strokeRect(x - 8, b.y0, 16, b.y1 - b.y0);
-        }
-        ctx.globalAlpha = 1;
-        if (b.y1 - b.y0 >= 9 || sc.bands.length <= 12) {
-          ctx.fillStyle = picked ? theme.fg : theme.muted;
-          ctx.font = `${picked ? "600 " : ""}10px ${theme.font}`;
-          const room = layout.horizontal ? b.y1 - b.y0 + 40 : i === 0 ? x - 10 : Math.max(30, gap * 0.55);
-          label(ctx, fitText(ctx, sc.bandLabel(code), room), x - 7, (b.y0 + b.y1) / 2, theme);
-        }
-      });
-    } else {
-      ctx.globalAlpha = 0.9;
-      ctx.beginPath();
-      ctx.moveTo(x, layout.top);
-      ctx.lineTo(x, layout.bottom);
-      ctx.stroke();
-      beside(ctx, layout, "before");
-      const ticks = sc.ticks();
-      ticks.values.forEach((v, t) => {
-        const y = Math.round(sc.toPixel(v)) + 0.5;
-        ctx.beginPath();
-        ctx.moveTo(x - 4, y);
-        ctx.lineTo(x, y);
-        ctx.stroke();
-        label(ctx, ticks.labels[t], x - 6, y, theme);
-      });
+    if (sc.categorical) drawBands(ctx, layout, sc, s, x, i, gap, theme);
+    else {
+      drawScale(ctx, layout, sc, x, theme);
       if (hist && hist.histAll[i]) drawHistogram(ctx, sc, x, layout, hist.histAll[i], hist.histSelected[i], theme);
-      // ±inf pinned to the ends, with a marker
-      const [neg, pos] = axis.inf;
-      beside(ctx, layout, "after");
-      if (pos) label(ctx, `+∞ ${pos}`, x + 6, layout.top - 6, theme);
-      if (neg) label(ctx, `−∞ ${neg}`, x + 6, layout.bottom + 8, theme);
-      ctx.globalAlpha = 1;
-      for (const [lo, hi] of s?.spans ?? []) {
-        const yHi = sc.toPixel(hi);
-        const yLo = sc.toPixel(lo);
-        const yTop = Math.max(layout.top - 2, Math.min(yHi, yLo));
-        const yBot = Math.min(layout.bottom + 2, Math.max(yHi, yLo));
-        ctx.fillStyle = theme.band;
-        ctx.fillRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
-        ctx.strokeStyle = theme.bandEdge;
-        ctx.strokeRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
-        ctx.fillStyle = theme.fg;
-        ctx.font = `600 10px ${theme.font}`;
-        const hiText = hi === Infinity ? "open" : sc.format(hi);
-        const loText = lo === -Infinity ? "open" : sc.format(lo);
-        // end values on the right of the axis, or on the left where the chart ends
-        const wide = Math.max(ctx.measureText(hiText).width, ctx.measureText(loText).width);
-        const right = layout.horizontal || x + 11 + wide <= layout.width;
-        beside(ctx, layout, right ? "after" : "before");
-        const tx = right ? x + 11 : x - 11;
-        label(ctx, sc.flipped ? loText : hiText, tx, yTop - 1, theme);
-        label(ctx, sc.flipped ? hiText : loText, tx, yBot + 1, theme);
-      }
+      drawInfinities(ctx, layout, sc, x, theme);
+      drawRanges(ctx, layout, sc, s, x, theme);
     }
-    // header: name, and a small marker of the kind
-    ctx.globalAlpha = 1;
-    ctx.textAlign = "center";
-    ctx.textBaseline = "middle";
-    ctx.fillStyle = theme.fg;
-    header(ctx, slot.name, x, Math.max(30, gap - 6), theme, layout);
-    ctx.font = `9px ${theme.font}`;
-    ctx.fillStyle = theme.muted;
-    const mark = (KIND_MARK[axis.kind] ?? axis.kind) + (sc.flipped !== layout.horizontal ? " ↓" : "");
-    if (layout.horizontal) {
-      ctx.textAlign = "left";
-      ctx.textBaseline = "top";
-      ctx.fillText(mark, x + 2, 6);
-    } else ctx.fillText(mark, x, 33);
-    // missing-values lane: a box below the axis, filled when picked
-    const lanePicked = !!s?.lane;
-    ctx.globalAlpha = axis.missing || lanePicked ? 0.95 : 0.3;
-    if (lanePicked) {
-      ctx.fillStyle = theme.band;
-      ctx.fillRect(x - 8, layout.laneY - layout.laneHalf, 16, 2 * layout.laneHalf);
-    }
-    ctx.strokeStyle = lanePicked ? theme.bandEdge : theme.muted;
-    ctx.setLineDash(lanePicked ? [] : [2, 2]);
-    ctx.strokeRect(x - 7, layout.laneY - layout.laneHalf, 14, 2 * layout.laneHalf);
-    ctx.setLineDash([]);
-    if (axis.missing) {
-      beside(ctx, layout, "after");
-      ctx.fillStyle = theme.muted;
-      ctx.font = `10px ${theme.font}`;
-      ctx.fillText(`∅ ${formatValue(axis.missing, 1)}`, x + 10, layout.laneY);
-    }
-    ctx.globalAlpha = 1;
+    drawHeader(ctx, layout, sc, slot.name, x, gap, theme);
+    drawLane(ctx, layout, sc, s, x, theme);
   });
-  // rank association between neighbours, midway between their headers
-  ctx.font = `10px ${theme.font}`;
-  ctx.textAlign = layout.horizontal ? "left" : "center";
-  ctx.textBaseline = "middle";
-  readouts.forEach((r, i) => {
-    if (i + 1 >= layout.slots.length || !isFinite(r.value)) return;
-    const x = (layout.slots[i].x + layout.slots[i + 1].x) / 2;
-    ctx.fillStyle = r.value >= 0 ? theme.line : NEGATIVE;
-    ctx.fillText(`ρ ${r.value >= 0 ? "+" : "−"}${Math.abs(r.value).toFixed(2)}`, x, layout.horizontal ? 60 : 42);
-  });
+  drawReadouts(ctx, layout, readouts, theme);
 }
