@@ -6,6 +6,7 @@
 // and null for the missing-values lane.
 
 import { bandCount, CODE_MAX, CODE_MISSING, fraction, isCategorical, type AxisData, type Table } from "./data";
+import { calendar } from "./scales";
 import { CODE_COUNT } from "./wire";
 
 export type Span = [number, number];
@@ -82,13 +83,30 @@ function endToUnits(a: AxisData, v: number | string | null, side: 0 | 1): number
   return Number(v);
 }
 
+const pad = (v: number, width = 2) => String(v).padStart(width, "0");
+
+/**
+ * A time (ms since the epoch) in the kernel's normal form, pandas' `Timestamp.isoformat()`: the wall
+ * clock (in the axis's time zone, with its UTC offset, on a tz-aware axis), and microseconds only when
+ * there is a fraction of a second.
+ */
+export function isoTime(ms: number, tz: string | null): string {
+  const whole = Math.floor(ms / 1000) * 1000;
+  const c = calendar(whole, tz);
+  let text = `${pad(c.Y, 4)}-${pad(c.M)}-${pad(c.D)}T${pad(c.h)}:${pad(c.m)}:${pad(c.s)}`;
+  if (ms !== whole) text += `.${pad(Math.round((ms - whole) * 1000), 6)}`;
+  if (tz) {
+    const offset = Math.round((Date.UTC(c.Y, c.M - 1, c.D, c.h, c.m, c.s) - whole) / 60000);
+    const size = Math.abs(offset);
+    text += `${offset < 0 ? "-" : "+"}${pad(Math.floor(size / 60))}:${pad(size % 60)}`;
+  }
+  return text;
+}
+
 /** A range end in the trait's form; integer axes round inward (lo up, hi down) to whole values. */
 function unitsToEnd(a: AxisData, v: number, side: 0 | 1): number | string | null {
   if (!isFinite(v)) return null;
-  if (a.kind === "datetime") {
-    const iso = new Date(Math.round(v / 1e6)).toISOString();
-    return a.tz ? iso : iso.slice(0, -1);
-  }
+  if (a.kind === "datetime") return isoTime(Math.round(v / 1e6), a.tz);
   if (a.kind === "timedelta") return Math.round(v / 1e6) / 1e3;
   if (a.kind === "integer") return side === 0 ? Math.ceil(v - 1e-9) : Math.floor(v + 1e-9);
   return v;
