@@ -13,8 +13,15 @@ export interface ViewHooks {
   layersAt(scale: number): Promise<HTMLCanvasElement[]>;
 }
 
+type Hooked = { __axw?: ViewHooks };
+
 export function attachHooks(root: HTMLElement, hooks: ViewHooks): void {
-  (root as unknown as { __axw: ViewHooks }).__axw = hooks;
+  (root as HTMLElement & Hooked).__axw = hooks;
+}
+
+/** The hooks of a view's root, if it is one. */
+export function viewHooks(root: HTMLElement): ViewHooks | undefined {
+  return (root as HTMLElement & Hooked).__axw;
 }
 
 /** The status of the selection: count shown, rows, and "preview" until the kernel has answered. */

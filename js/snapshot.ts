@@ -7,6 +7,7 @@
 // Every page answers through the first live view of the model it holds; the kernel keeps the first
 // answer to an id and ignores the rest (several browser tabs may show the same kernel).
 
+import { viewHooks } from "./hooks";
 import type { WidgetModel } from "./model";
 import { readTheme } from "./theme";
 // page -> server websocket messages above 10 MiB are dropped silently: PNG_MAX_BYTES stays well below
@@ -66,7 +67,7 @@ export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob
   ctx.imageSmoothingEnabled = true;
   ctx.imageSmoothingQuality = "high";
   // drawn afresh at this scale when the view offers it (sharp at any scale), else the screen's canvases
-  const hook = (root as unknown as { __axw?: { layersAt?: (s: number) => Promise<HTMLCanvasElement[]> } }).__axw;
+  const hook = viewHooks(root);
   const fresh = hook?.layersAt ? await hook.layersAt(scale).catch(() => null) : null;
   for (const layer of fresh ?? layers) if (layer.width > 0 && layer.height > 0) ctx.drawImage(layer, 0, 0, width, height);
   const status = root.querySelector(".axw-status")?.textContent ?? "";

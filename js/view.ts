@@ -18,10 +18,6 @@ import { ensureStyles } from "./style";
 import { KernelSync } from "./sync";
 import { DENSITY_ROWS, OPTIONS } from "./wire";
 
-export type { WidgetModel as Model } from "./model";
-/** Above this many rows, view_mode "auto" draws the density view (the wire contract's). */
-export { DENSITY_ROWS };
-
 /** Okabe–Ito vermillion: the pinned row */
 const PINNED = "#D55E00";
 
