@@ -73,9 +73,14 @@ def test_the_contract_is_the_same_on_both_sides(page):
     assert got["CODE_MISSING"] == wire.CODE_MISSING == CODE_MISSING == 65535
     assert got["HIST_BINS"] == wire.HIST_BINS and wire.HIST_BINS << wire.HIST_SHIFT == CODE_MISSING + 1
     assert got["DENSITY_BINS"] == wire.DENSITY_BINS
-    from axeswidget import widget
+    from axeswidget import export, widget
 
     assert tuple(got["OPTIONS"]) == wire.OPTIONS == tuple(widget._OPTIONS)
+    # the PNG protocol as the page's snapshot module sees it
+    assert got["PNG_MESSAGE"] == wire.PNG_MESSAGE == export.PNG_MESSAGE
+    assert got["PNG_MAX_SCALE"] == wire.PNG_MAX_SCALE == export.MAX_SCALE
+    # recalled from memory: the server drops page -> server websocket messages above 10 MiB (tornado default)
+    assert got["PNG_MAX_BYTES"] == wire.PNG_MAX_BYTES < 10 * 1024 * 1024
 
 
 # -- codes: Python's quantisation read back by the page, linear and log --------------------------------

@@ -4,6 +4,7 @@ import { createInterface } from "node:readline";
 import { codeToValue, decodeTable, unpackMask, type AxisData, type RawTable } from "../data";
 import { fromTrait, previewMask, toTrait, type TraitRanges } from "../selection";
 import { CODE_MAX, CODE_MISSING, DENSITY_BINS, densityBins, HIST_BINS, histBin, OPTIONS } from "../wire";
+import { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE } from "../snapshot";
 
 type Args = Record<string, any>;
 
@@ -21,7 +22,7 @@ const decoded = (a: AxisData, c: number) => {
 };
 
 const handlers: Record<string, (args: Args) => unknown> = {
-  contract: () => ({ CODE_MAX, CODE_MISSING, HIST_BINS, DENSITY_BINS, OPTIONS }),
+  contract: () => ({ CODE_MAX, CODE_MISSING, HIST_BINS, DENSITY_BINS, OPTIONS, PNG_MESSAGE, PNG_MAX_SCALE, PNG_MAX_BYTES }),
   decode: ({ raw }) => table(raw).axes.map((a) => Array.from(a.codes, (c) => decoded(a, c))),
   preview: ({ raw, ranges }) => {
     const t = table(raw);
