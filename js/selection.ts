@@ -135,7 +135,8 @@ export function fromTrait(table: Table, raw: TraitRanges | null | undefined): Se
 
 /**
  * The trait form of a selection. Axes whose selection equals the one read from `previous` keep the
- * previous trait items verbatim, so values the page cannot represent exactly (nanoseconds) survive.
+ * previous trait items verbatim, and so do unchanged ranges on an edited axis: values the page cannot
+ * represent exactly (nanoseconds) survive, and an end the kernel set is never reinterpreted.
  */
 export function toTrait(table: Table, sel: Sel, previous: TraitRanges | null | undefined): TraitRanges {
   const out: TraitRanges = record();
@@ -150,7 +151,17 @@ export function toTrait(table: Table, sel: Sel, previous: TraitRanges | null | u
       continue;
     }
     const items: TraitItem[] = [];
+    // ranges kept as they were (the user changed another one on this axis) keep their previous text
+    const kept = new Map<string, TraitItem>();
+    for (const item of before ?? []) {
+      if (Array.isArray(item)) kept.set(`${endToUnits(a, item[0], 0)} ${endToUnits(a, item[1], 1)}`, item);
+    }
     for (const [lo, hi] of s.spans) {
+      const same = kept.get(`${lo} ${hi}`);
+      if (same) {
+        items.push(same);
+        continue;
+      }
       // an end dragged onto the end of an axis that holds ±inf values takes them in (open end)
       const l = lo <= a.lo && a.inf[0] > 0 ? -Infinity : lo;
       const h = hi >= a.hi && a.inf[1] > 0 ? Infinity : hi;

@@ -96,3 +96,16 @@ test("integer axes round range ends inward to whole values", () => {
   // no whole value inside: the range is kept as drawn (it selects nothing)
   assert.deepEqual(toTrait(t, { y: sel([[2010.2, 2010.8]]) }, {}), rec({ y: [[2010.2, 2010.8]] }));
 });
+
+test("a range the kernel set keeps its text when another range is added on its axis", () => {
+  // the axis holds -inf values: an end dragged onto the bottom takes them in, an end the kernel set does not
+  const codes = new Uint16Array([0, 0, CODE_MAX]);
+  const t = decodeTable({ n: 3, columns: [{ name: "x", kind: "number", lo: 0, hi: 10, missing: 0, inf: [1, 0], codes: new DataView(codes.buffer) }] });
+  const prev = { x: [[0, 5]] as [number, number][] };
+  const s = fromTrait(t, prev);
+  s.x.spans.push([7, 8]);
+  assert.deepEqual(toTrait(t, s, prev), rec({ x: [[0, 5], [7, 8]] }));
+  // a new range dragged onto the bottom end is open there
+  s.x.spans = [[0, 2]];
+  assert.deepEqual(toTrait(t, s, prev), rec({ x: [[null, 2]] }));
+});
