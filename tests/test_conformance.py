@@ -315,3 +315,19 @@ def test_page_round_trip_keeps_the_kernel_normal_form(page, picked):
     assert set(back) == set(normal)
     # ... and the kernel reads what the page wrote as the same selection
     assert selection.normalise(back, COLUMNS) == normal
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(picked=selections(COLUMNS))
+def test_a_page_edit_keeps_what_the_kernel_set(page, picked):
+    normal = selection.normalise(picked, COLUMNS)
+    # the new range [6000, 7000] lies above every generated one, apart from one open upward
+    assume(not any(i is not None and i[1] is None for i in normal.get("num", [])))
+    raw = raw_table(list(COLUMNS.values()))
+    back = page("addRange", raw=raw, ranges=normal, axis="num", span=[6000.0, 7000.0])
+    # every other axis exactly as the kernel set it; on the edited one, the kernel's ranges plus the new one
+    assert {k: v for k, v in back.items() if k != "num"} == {k: v for k, v in normal.items() if k != "num"}
+    before = normal.get("num", [])
+    spans = [i for i in before if i is not None] + [[6000.0, 7000.0]]
+    assert back["num"] == spans + ([None] if None in before else [])
+    assert selection.normalise(back, COLUMNS)["num"] == back["num"]

@@ -31,6 +31,13 @@ const handlers: Record<string, (args: Args) => unknown> = {
   hist: ({ codes }) => codes.map((c: number) => (c === CODE_MISSING ? -1 : histBin(c))),
   density: ({ bins, categorical }) => Array.from(densityBins(bins, categorical)),
   unpack: ({ bits, n }) => Array.from(unpackMask(view(bits), n) ?? []),
+  addRange: ({ raw, ranges, axis, span }) => {
+    // the user adds one range on `axis` to a selection the kernel set
+    const t = table(raw);
+    const sel = fromTrait(t, ranges);
+    (sel[axis] ??= { spans: [], bands: [], lane: false }).spans.push(span);
+    return toTrait(t, sel, ranges);
+  },
   roundTrip: ({ raw, ranges }) => {
     const t = table(raw);
     return ranges.map((r: TraitRanges) => toTrait(t, fromTrait(t, r), null));
