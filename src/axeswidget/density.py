@@ -44,7 +44,7 @@ from typing import Any, Protocol
 
 import numpy as np
 
-from .encode import CODE_MAX, CODE_MISSING
+from .wire import CODE_MAX, CODE_MISSING
 
 __all__ = ["MAX_BINS", "MAX_PAIR_BINS", "TableSummary", "bin_codes", "pair_counts", "neighbour_counts"]
 

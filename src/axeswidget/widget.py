@@ -66,6 +66,7 @@ class AxesWidget(anywidget.AnyWidget):
     """
 
     _esm = _STATIC / "widget.js"
+    _css = _STATIC / "widget.css"
 
     table = t.Dict().tag(sync=True)
     order = t.List(t.Unicode()).tag(sync=True, echo_update=False)
