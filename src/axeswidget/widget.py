@@ -15,7 +15,7 @@ import numpy as np
 import pandas as pd
 import traitlets as t
 
-from . import contrast, export, measures, ordering
+from . import contrast, export, measures, ordering, wire
 from .carryover import carry_over
 from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
 from .selection import MaskEvaluator, SelectionError, normalise, pack, to_query
@@ -506,18 +506,7 @@ class AxesWidget(anywidget.AnyWidget):
 
 
 #: view options that can be given as keyword arguments and are carried over by ``resume=``
-_OPTIONS = (
-    "color_by",
-    "opacity",
-    "view_mode",
-    "curves",
-    "bundle_by",
-    "bundle_strength",
-    "histograms",
-    "orientation",
-    "log_axes",
-    "height",
-)
+_OPTIONS = wire.OPTIONS
 #: the traits a data swap or ``resume=`` carries over besides the options
 _VIEW = ("order", "ranges", "flipped", "saved", "pinned")
 HEIGHT_MIN, HEIGHT_MAX = 120, 4000
