@@ -19,6 +19,7 @@ from __future__ import annotations
 import glob
 import os
 import re
+import uuid
 
 import pandas as pd
 
@@ -67,6 +68,7 @@ class DuckDBSource(SqlSource):
         self.native = relation
         self.connection = connection
         self.where = where or "a DuckDB relation"
+        self._table = f"axeswidget_{uuid.uuid4().hex[:12]}"  # the relation's name inside the queries
         self._open(axes)
 
     @classmethod
