@@ -55,6 +55,19 @@ _NUMBERS = {
 }
 
 
+def _describe(frame) -> str:
+    """Name the files behind a DataFrame (for error messages), or say it is a Spark DataFrame."""
+    try:
+        files = frame.inputFiles()
+    except Exception:  # not every plan can list its files
+        files = []
+    if not files:
+        return "a Spark DataFrame"
+    if len(files) == 1:
+        return f"Spark DataFrame of file {files[0]!r}"
+    return f"Spark DataFrame of {len(files)} files, first {files[0]!r}"
+
+
 class SparkSource(SqlSource):
     """A PySpark DataFrame as a data source."""
 
@@ -68,7 +81,7 @@ class SparkSource(SqlSource):
             raise TypeError(f"axeswidget: SparkSource needs a PySpark DataFrame, got {type(frame).__name__}")
         self.native = frame
         self.session = frame.sparkSession
-        self.where = where or "a Spark DataFrame"
+        self.where = where or _describe(frame)
         self._table = f"axeswidget_{uuid.uuid4().hex[:12]}"
         frame.createOrReplaceTempView(self._table)
         self._open(axes)
