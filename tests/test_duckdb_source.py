@@ -200,3 +200,23 @@ def test_engine_error_mid_query_keeps_state(tmp_path, parts, table):
     assert after == before
     shutil.copy(parts / "part-0.parquet", single)
     assert source.count(ranges) == count
+
+
+def test_log_axis_codes_and_spec_match_memory():
+    relation = duckdb.sql("SELECT 1 + i * 0.37 AS level, i % 4 AS gate FROM range(500) t(i)")
+    source = DuckDBSource(relation)
+    memory = MemorySource(relation.df())
+    for col in (source.columns["level"], memory.columns["level"]):
+        col.log = True
+    memory.columns["level"].encode()
+    np.testing.assert_array_equal(source.codes(["level"])["level"], memory.columns["level"].codes)
+    # reference: numpy log then the linear rule over [log lo, log hi]
+    v, lo, hi = np.log(1 + np.arange(500) * 0.37), np.log(1.0), np.log(1 + 499 * 0.37)
+    want = np.rint((v * 0.5 - lo * 0.5) * (65534 / (hi * 0.5 - lo * 0.5))).astype(np.uint16)
+    np.testing.assert_array_equal(source.codes(["level"])["level"], want)
+    spec = source.columns["gate"].spec()  # before any sample: no codes yet, the rest is there
+    assert spec["values"] == [0, 1, 2, 3] and spec["kind"] == "integer" and len(spec["codes"]) == 0
+    sample = source.sample(20, seed=0)
+    spec = source.columns["gate"].spec()
+    assert len(spec["codes"]) == 2 * 20 and spec["missing"] == 0
+    np.testing.assert_array_equal(np.frombuffer(spec["codes"], dtype=np.uint16), sample.codes["gate"])

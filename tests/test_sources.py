@@ -135,3 +135,13 @@ def test_unsupported_lazy_types_and_missing_paths_are_named(tmp_path):
     missing = tmp_path / "nowhere" / "*.parquet"
     with pytest.raises(SourceError, match="no files found at .*nowhere"):
         open_source(str(missing))
+
+
+def test_arrow_record_batch_and_narwhals_wrappers_keep_their_type(table):
+    batch = pa.RecordBatch.from_pandas(table, preserve_index=False)
+    source = open_source(batch)
+    picked = source.selected(normalise(SELECTION, source.columns))
+    assert isinstance(picked, pa.RecordBatch) and picked.num_rows == reference_mask(table).sum()
+    wrapped = nw.from_native(pl.from_pandas(table))
+    source = open_source(wrapped)
+    assert isinstance(source.selected(normalise(SELECTION, source.columns)), pl.DataFrame)

@@ -27,6 +27,8 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
+import narwhals as nw
+
 from .base import DataSource, EngineColumn, EngineError, NotInMemoryError, Sample, SourceError, axis_bins
 from .memory import MemorySource
 
@@ -61,6 +63,8 @@ def open_source(data, axes=None, names=None) -> DataSource:
     """The data source for a table, a path of files, or an engine table (see the module docstring)."""
     if isinstance(data, DataSource):
         return data
+    if isinstance(data, nw.DataFrame | nw.LazyFrame):
+        data = data.to_native()  # a narwhals wrapper: the rows come back in the wrapped type
     if isinstance(data, str | os.PathLike) or (
         isinstance(data, list | tuple) and data and all(isinstance(p, str | os.PathLike) for p in data)
     ):

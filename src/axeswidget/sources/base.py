@@ -90,6 +90,12 @@ class EngineColumn(Column):
     def encode(self) -> None:  # codes come from the engine, not from in-memory values
         return None
 
+    def spec(self) -> dict:
+        """As :meth:`Column.spec`, with the sample's codes (none before the first sample)."""
+        if self.codes is None:
+            self.codes = np.zeros(0, dtype=np.uint16)
+        return super().spec()
+
 
 @dataclass
 class Sample:

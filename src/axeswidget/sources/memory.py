@@ -28,6 +28,10 @@ def take_rows(native, frame: pd.DataFrame, mask: np.ndarray):
         return native[mask]
     if isinstance(native, dict):
         return {k: np.asarray(v)[mask] for k, v in native.items()}
+    if type(native).__module__.split(".")[0] == "pyarrow" and hasattr(native, "filter"):
+        import pyarrow as pa
+
+        return native.filter(pa.array(mask))  # Table and RecordBatch keep their type
     try:
         table = nw.from_native(native, eager_only=True)
     except TypeError:
