@@ -49,7 +49,12 @@ class Dialect:
         return '"' + name.replace('"', '""') + '"'
 
     def rint(self, x: str) -> str:
-        return f"round_even({x}, 0)"
+        """Round half to even (numpy.rint) for ``x >= 0``; twice as fast in DuckDB as round_even.
+
+        ``x + 0.5`` is exact for the scaled codes (below 2^16), so a tie is ``floor(x + 0.5) - x = 0.5``.
+        """
+        up = f"floor({x} + 0.5)"
+        return f"({up} - CASE WHEN {up} - {x} = 0.5 AND {up} % 2 = 1 THEN 1 ELSE 0 END)"
 
     def idiv(self, a: str, b: int) -> str:
         return f"(({a}) // {b})"
@@ -283,9 +288,13 @@ class SqlSource(DataSource):
             code = "0"
         return f"(CASE WHEN {missing} THEN {CODE_MISSING} ELSE {code} END)"
 
-    def bin_sql(self, axis: str, bins: int) -> str:
-        """SQL for the pair-count bin (0..bins) of one axis (rule: :func:`base.axis_bins`)."""
-        col, code = self.columns[axis], self.code_sql(axis)
+    def bin_sql(self, axis: str, bins: int, code: str | None = None) -> str:
+        """SQL for the pair-count bin (0..bins) of one axis (rule: :func:`base.axis_bins`).
+
+        ``code`` names a column already holding the axis's wire code (default: computed here).
+        """
+        col = self.columns[axis]
+        code = self.code_sql(axis) if code is None else code
         if col.kind in ("category", "boolean"):
             bands = axis_bands(col)
             b = code if bands <= bins else self.dialect.idiv(f"{code} * {bins}", bands)
@@ -373,11 +382,13 @@ class SqlSource(DataSource):
         if len(order) < 2:
             return []
         where = self.filter_sql(ranges or {})
-        binned = ", ".join(f"{self.bin_sql(a, bins)} AS b{i}" for i, a in enumerate(order))
+        codes = ", ".join(f"{self.code_sql(a)} AS c{i}" for i, a in enumerate(order))
+        binned = ", ".join(f"{self.bin_sql(a, bins, f'c{i}')} AS b{i}" for i, a in enumerate(order))
         sets = ", ".join(f"(b{i}, b{i + 1})" for i in range(len(order) - 1))
         cols = ", ".join(f"b{i}" for i in range(len(order)))
         sql = (
-            f"SELECT {cols}, count(*) AS n FROM (SELECT {binned} FROM {self._table} WHERE {where}) AS binned "
+            f"SELECT {cols}, count(*) AS n FROM (SELECT {binned} FROM "
+            f"(SELECT {codes} FROM {self._table} WHERE {where}) AS coded) AS binned "
             f"GROUP BY GROUPING SETS ({sets})"
         )
         frame = self._run("counting rows per pair of bins", self._frame, sql)
