@@ -220,3 +220,15 @@ def test_log_axis_codes_and_spec_match_memory():
     spec = source.columns["gate"].spec()
     assert len(spec["codes"]) == 2 * 20 and spec["missing"] == 0
     np.testing.assert_array_equal(np.frombuffer(spec["codes"], dtype=np.uint16), sample.codes["gate"])
+
+
+def test_too_many_labels_skip_the_column_or_name_it(monkeypatch):
+    from axeswidget.sources import sql
+
+    monkeypatch.setattr(sql, "CATEGORY_LIMIT", 10)  # keep the table small
+    relation = duckdb.sql("SELECT i * 1.0 AS x, 'tag' || (i % 12) AS tag FROM range(50) t(i)")
+    with pytest.warns(UserWarning, match="skipped columns: 'tag' .*more than 10 distinct labels"):
+        source = DuckDBSource(relation)
+    assert list(source.columns) == ["x"]
+    with pytest.raises(ColumnError, match="column 'tag' has more than 10 distinct labels"):
+        DuckDBSource(relation, axes=["tag"])

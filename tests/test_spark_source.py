@@ -134,6 +134,21 @@ def test_spark_types_and_bad_columns(spark):
         SparkSource(frame, axes=["level", "pair"])
 
 
+def test_spark_wall_clock_times_do_not_move_with_the_session_zone(spark, parquet, table):
+    spark.conf.set("spark.sql.session.timeZone", "America/New_York")
+    try:
+        source = open_source(spark.read.parquet(str(parquet)))
+    finally:
+        spark.conf.set("spark.sql.session.timeZone", "UTC")
+    when = table["when"].astype("datetime64[ns]")
+    # reference: pandas min/max of the naive column, in ns since the epoch
+    assert (source.columns["when"].lo, source.columns["when"].hi) == (
+        float(when.min().value),
+        float(when.max().value),
+    )
+    assert source.columns["when"].tz is None
+
+
 def test_spark_engine_error_is_wrapped(spark, tmp_path, table):
     path = tmp_path / "gone.parquet"
     table.iloc[:100].to_parquet(path, index=False)

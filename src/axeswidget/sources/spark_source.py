@@ -35,7 +35,11 @@ class SparkDialect(Dialect):
         return f"(({a}) div {b})"
 
     def epoch_ns(self, x: str, sql_type: str) -> str:
-        return f"(unix_micros(CAST({x} AS TIMESTAMP)) * 1000)"
+        if sql_type == "timestamptz":  # an instant: microseconds since the epoch in UTC
+            return f"(unix_micros({x}) * 1000)"
+        # wall-clock time without a zone (timestamp_ntz, date): read as UTC, whatever the session zone
+        epoch = "TIMESTAMP_NTZ '1970-01-01 00:00:00'"
+        return f"(timestampdiff(MICROSECOND, {epoch}, CAST({x} AS TIMESTAMP_NTZ)) * 1000)"
 
     def hash(self, parts) -> str:
         return f"xxhash64({', '.join(parts)})"

@@ -167,9 +167,9 @@ class SqlSource(DataSource):
                         f"column {name!r} has type {types[name][0]}, which cannot be drawn on an axis"
                     )
                 wanted.append((name, kind))
-        self.columns, self.n = self._summarise(wanted)
+        self.columns, self.n = self._summarise(wanted, named=axes is not None)
 
-    def _summarise(self, wanted) -> tuple[dict, int]:
+    def _summarise(self, wanted, named: bool) -> tuple[dict, int]:
         d = self.dialect
         inf = d.double(math.inf)
         exprs = ["count(*)"]
@@ -220,11 +220,22 @@ class SqlSource(DataSource):
                 if col.is_float:
                     col.neg_inf, col.pos_inf = int(row[i] or 0), int(row[i + 1] or 0)
                     i += 2
-        for col in cols.values():
+        skipped = []
+        for name, col in list(cols.items()):
             if col.int_type and col.missing_count < n:
                 self._discrete(col)
             elif col.kind in ("category", "boolean"):
-                self._labels(col)
+                try:
+                    self._labels(col)
+                except ColumnError as err:
+                    if named:
+                        raise
+                    skipped.append(f"{name!r} ({str(err).split(' ', 2)[-1]})")
+                    del cols[name]
+        if not cols:
+            raise ColumnError(f"the table has no column that can be drawn: {'; '.join(skipped)}")
+        if skipped:
+            warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=5)
         return cols, n
 
     def _discrete(self, col: EngineColumn) -> None:
