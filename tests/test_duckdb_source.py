@@ -226,9 +226,13 @@ def test_too_many_labels_skip_the_column_or_name_it(monkeypatch):
     from axeswidget.sources import sql
 
     monkeypatch.setattr(sql, "CATEGORY_LIMIT", 10)  # keep the table small
-    relation = duckdb.sql("SELECT i * 1.0 AS x, 'tag' || (i % 12) AS tag FROM range(50) t(i)")
-    with pytest.warns(UserWarning, match="skipped columns: 'tag' .*more than 10 distinct labels"):
+    relation = duckdb.sql("SELECT i * 1.0 AS x, 'tag' || (i % 12) AS tag, [i] AS l FROM range(50) t(i)")
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
         source = DuckDBSource(relation)
     assert list(source.columns) == ["x"]
+    assert len(caught) == 1  # one warning names both columns and why
+    assert "'tag' (has more than 10 distinct labels" in str(caught[0].message)
+    assert "'l' (type BIGINT[]" in str(caught[0].message)
     with pytest.raises(ColumnError, match="column 'tag' has more than 10 distinct labels"):
         DuckDBSource(relation, axes=["tag"])

@@ -103,7 +103,7 @@ class SqlSource(DataSource):
 
     # -- engine hooks ------------------------------------------------------------------------------------
     def _rows(self, sql: str) -> list[tuple]:
-        """Run a query over the table (named ``t`` in the SQL) and return its rows."""
+        """Run a query over the table (named ``self._table`` in the SQL) and return its rows."""
         raise NotImplementedError
 
     def _frame(self, sql: str) -> pd.DataFrame:
@@ -136,21 +136,15 @@ class SqlSource(DataSource):
         """Read the schema and compute every axis summary; sets ``columns`` and ``n`` only on success."""
         schema = self._schema()
         names = [name for name, _, _ in schema]
+        skipped: list[str] = []
         if axes is None:
-            wanted, skipped = [], []
+            wanted = []
             for name, text, etype in schema:
                 kind = self._kind_of(text, etype)
                 if kind is None:
                     skipped.append(f"{name!r} (type {text}, which cannot be drawn on an axis)")
                 else:
                     wanted.append((name, kind))
-            if not wanted:
-                raise ColumnError(
-                    "the table has no column that can be drawn"
-                    + (f": {'; '.join(skipped)}" if skipped else " (it has no columns)")
-                )
-            if skipped:
-                warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=4)
         else:
             axes = [axes] if isinstance(axes, str) else list(axes)
             types = {name: (text, etype) for name, text, etype in schema}
@@ -167,9 +161,21 @@ class SqlSource(DataSource):
                         f"column {name!r} has type {types[name][0]}, which cannot be drawn on an axis"
                     )
                 wanted.append((name, kind))
-        self.columns, self.n = self._summarise(wanted, named=axes is not None)
+        columns, n = self._summarise(wanted, skipped, named=axes is not None)
+        if not columns:
+            raise ColumnError(
+                "the table has no column that can be drawn"
+                + (f": {'; '.join(skipped)}" if skipped else " (it has no columns)")
+            )
+        if skipped:
+            warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=4)
+        self.columns, self.n = columns, n
 
-    def _summarise(self, wanted, named: bool) -> tuple[dict, int]:
+    def _summarise(self, wanted, skipped: list[str], named: bool) -> tuple[dict, int]:
+        """Domains, missing and infinite counts (one scan), then discrete values and label counts.
+
+        Label columns over the label limit are dropped into ``skipped`` (or raise when ``named``).
+        """
         d = self.dialect
         inf = d.double(math.inf)
         exprs = ["count(*)"]
@@ -220,7 +226,6 @@ class SqlSource(DataSource):
                 if col.is_float:
                     col.neg_inf, col.pos_inf = int(row[i] or 0), int(row[i + 1] or 0)
                     i += 2
-        skipped = []
         for name, col in list(cols.items()):
             if col.int_type and col.missing_count < n:
                 self._discrete(col)
@@ -232,10 +237,6 @@ class SqlSource(DataSource):
                         raise
                     skipped.append(f"{name!r} ({str(err).split(' ', 2)[-1]})")
                     del cols[name]
-        if not cols:
-            raise ColumnError(f"the table has no column that can be drawn: {'; '.join(skipped)}")
-        if skipped:
-            warnings.warn(f"axeswidget: skipped columns: {'; '.join(skipped)}", stacklevel=5)
         return cols, n
 
     def _discrete(self, col: EngineColumn) -> None:
