@@ -147,10 +147,17 @@ class DataSource(abc.ABC):
     columns: dict[str, Column]
     native: object  # the table the user gave (a DataFrame, a relation, ...)
 
+    def __repr__(self) -> str:
+        return f"<{type(self).__name__} {self.n} rows, axes {list(self.columns)}>"
+
     # -- data ------------------------------------------------------------------------------------------
     @abc.abstractmethod
     def codes(self, axes: Sequence[str] | None = None) -> dict[str, np.ndarray]:
-        """Wire codes (uint16) of every row per axis, in the table's row order."""
+        """Wire codes (uint16) of every row per axis, in the table's row order.
+
+        Engine sources fetch ``2 * n`` bytes per axis for this, in the order the engine scans (Parquet
+        files in name order); above the scale threshold ask for :meth:`sample` instead.
+        """
 
     @abc.abstractmethod
     def sample(self, k: int, seed: int = 0) -> Sample:
