@@ -20,7 +20,14 @@ from axeswidget.encode import ColumnError
 from axeswidget.selection import normalise
 from axeswidget.sources import DuckDBSource, EngineError, NotInMemoryError, SourceError, open_source
 from axeswidget.sources.memory import MemorySource
-from tests.source_reference import ORDER, SELECTION, check_against_pandas, pump_table, reference_mask
+from tests.source_reference import (
+    ORDER,
+    SELECTION,
+    check_against_pandas,
+    pump_table,
+    reference_mask,
+    sorted_rows,
+)
 
 
 @pytest.fixture(scope="module")
@@ -158,7 +165,7 @@ def test_engine_types_match_pandas():
     # the in-memory source over the same rows draws the same codes
     memory = MemorySource(frame.assign(gap=gap, d=day, money=frame["money"].astype(float)))
     codes = source.codes()
-    for name in ("i", "ts", "gap", "d", "money", "flag"):
+    for name in ("i", "m", "ts", "gap", "d", "money", "flag"):
         np.testing.assert_array_equal(codes[name], memory.columns[name].codes, err_msg=name)
 
 
@@ -236,3 +243,29 @@ def test_too_many_labels_skip_the_column_or_name_it(monkeypatch):
     assert "'l' (type BIGINT[]" in str(caught[0].message)
     with pytest.raises(ColumnError, match="column 'tag' has more than 10 distinct labels"):
         DuckDBSource(relation, axes=["tag"])
+
+
+def test_many_labels_share_one_band_as_in_memory():
+    con = duckdb.connect()
+    labels = ", ".join(f"'v{i:02d}'" for i in range(70))
+    con.execute(f"CREATE TYPE valve AS ENUM ({labels})")
+    # label v{k} appears (k * 7 % 13) + 1 times: counts tie and vary, so the 60 kept bands are a real choice
+    relation = con.sql(
+        "SELECT ('v' || lpad(k::VARCHAR, 2, '0'))::valve AS e, 'w' || lpad(k::VARCHAR, 2, '0') AS s "
+        "FROM range(70) a(k), range(13) b(j) WHERE j <= (k * 7) % 13"
+    )
+    source = DuckDBSource(relation)
+    memory = MemorySource(relation.df())
+    frame = relation.df()
+    for name in ("e", "s"):
+        assert source.columns[name].labels == memory.columns[name].labels, name
+        assert source.columns[name].counts == memory.columns[name].counts, name
+        np.testing.assert_array_equal(
+            sorted_rows(source.codes([name]), [name]), sorted_rows({name: memory.columns[name].codes}, [name])
+        )
+    # reference: pandas value_counts; the shared band holds the 10 rarest labels' rows
+    counts = frame["s"].value_counts()
+    rest = sum(sorted(counts.tolist())[:10])
+    assert sum(source.columns["s"].counts[60:]) == rest
+    spec = source.columns["s"].spec()
+    assert spec["rest"] == {"labels": 10, "rows": rest}
