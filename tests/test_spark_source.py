@@ -51,6 +51,9 @@ def spark():
             .config("spark.ui.showConsoleProgress", "false")
             .config("spark.sql.shuffle.partitions", "2")
             .config("spark.sql.session.timeZone", "UTC")
+            # the test tables are tiny: compiling whole-stage code and re-planning cost more than they save
+            .config("spark.sql.codegen.wholeStage", "false")
+            .config("spark.sql.adaptive.enabled", "false")
             .getOrCreate()
         )
     session.sparkContext.setLogLevel("ERROR")
@@ -70,9 +73,15 @@ def parquet(tmp_path_factory, table):
     return path
 
 
-def test_spark_matches_pandas(spark, parquet, table):
+@pytest.fixture(scope="module")
+def opened(spark, parquet):
+    """The pump table read by Spark and opened once for the tests that only ask questions of it."""
     frame = spark.read.parquet(str(parquet))
-    source = open_source(frame)
+    return frame, open_source(frame)
+
+
+def test_spark_matches_pandas(spark, opened, table):
+    frame, source = opened
     assert source.engine == "spark" and not source.in_memory
     expected = check_against_pandas(source, table)
     ranges = normalise(SELECTION, source.columns)
@@ -95,8 +104,8 @@ def test_spark_matches_pandas(spark, parquet, table):
         source.mask(ranges)
 
 
-def test_spark_sample_is_seeded(spark, parquet, table):
-    source = open_source(spark.read.parquet(str(parquet)))
+def test_spark_sample_is_seeded(opened, table):
+    source = opened[1]
     first, again, other = source.sample(50, seed=1), source.sample(50, seed=1), source.sample(50, seed=2)
     assert len(first) == 50
     pd.testing.assert_frame_equal(first.rows, again.rows)
