@@ -1,7 +1,7 @@
 """Engine sources that speak SQL: every summary, count, pair count and sample is one query pushed down.
 
 :class:`SqlSource` holds what DuckDB and Spark share; a subclass gives a :class:`Dialect` (quoting and
-the few functions that differ), runs a query (``_rows``/``_frame``/``_numpy``), maps the engine's
+the few functions that differ), runs a query (``_rows``/``_frame``), maps the engine's
 column types to axis kinds (``_kind_of``), and filters its lazy table (``selected``).
 
 The SQL reproduces the in-memory rules exactly:
