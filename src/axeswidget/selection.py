@@ -20,6 +20,7 @@ mask over the in-memory columns and recomputes only the axes whose items changed
 from __future__ import annotations
 
 import datetime as _dt
+import decimal
 import math
 import unicodedata
 from collections.abc import Mapping
@@ -28,7 +29,7 @@ from numbers import Real
 import numpy as np
 import pandas as pd
 
-from .encode import CATEGORY_BAND_LIMIT, Column
+from .encode import CATEGORY_BAND_LIMIT, CODE_MAX, Column
 
 Ranges = dict[str, list]
 
@@ -237,6 +238,116 @@ def normalise(ranges, columns: Mapping[str, Column]) -> Ranges:
         if clean:
             out[axis] = clean
     return out
+
+
+# -- ends dragged on the page --------------------------------------------------------------------------
+def round_page_ranges(ranges: Ranges, previous: Ranges, columns: Mapping[str, Column]) -> Ranges:
+    """Ranges from the page with each new float end on a number axis replaced by the shortest decimal
+    that selects exactly the same rows (see :func:`round_end`); ranges already in ``previous`` stay.
+
+    The selected rows never change: an axis whose rounded ranges would pick other rows keeps its ends.
+    """
+    out: Ranges = {}
+    for axis, items in ranges.items():
+        col = columns[axis]
+        if col.kind not in ("number", "integer"):
+            out[axis] = items
+            continue
+        old = previous.get(axis, [])
+        new = []
+        for item in items:
+            if item is None or item in old:
+                new.append(item)
+                continue
+            lo, hi = item
+            rlo = round_end(col, lo, "lo") if isinstance(lo, float) else lo
+            rhi = round_end(col, hi, "hi") if isinstance(hi, float) else hi
+            if rlo is not None and rhi is not None and rlo > rhi:
+                new.append(item)  # an empty range between two data values: keep it as drawn
+            else:
+                new.append([rlo, rhi])
+        if new != items:
+            spans = sorted((i for i in new if i is not None), key=lambda s: _end_key(s[0], col))
+            new = spans + [None] * (None in new)
+            if not np.array_equal(axis_mask(col, new), axis_mask(col, items)):
+                new = items
+        out[axis] = new
+    return out
+
+
+def round_end(col: Column, value: float, side: str):
+    """The shortest decimal that can replace a range end on a number axis without changing the rows.
+
+    The end may move anywhere between the nearest data values on either side of it (for ``"hi"``:
+    from the largest value it takes in, inclusive, to the smallest it leaves out, exclusive; mirrored
+    for ``"lo"``) and no further than half a wire-code step (what the page can resolve). Among the
+    decimals with the fewest significant digits there, the one nearest ``value`` is taken. Whole
+    results on integer columns come back as ``int``.
+    """
+    if not math.isfinite(value):
+        return value
+    v = col.values
+    with np.errstate(invalid="ignore"):
+        if side == "hi":
+            lower = float(np.max(v, where=v <= value, initial=-math.inf))  # taken in: closed
+            upper = float(np.min(v, where=v > value, initial=math.inf))  # left out: open
+            lower_open, upper_open = False, True
+        else:
+            lower = float(np.max(v, where=v < value, initial=-math.inf))
+            upper = float(np.min(v, where=v >= value, initial=math.inf))
+            lower_open, upper_open = True, False
+    w_lo, w_hi = _page_window(col, value)
+    if w_lo > lower:
+        lower, lower_open = w_lo, False
+    if w_hi < upper:
+        upper, upper_open = w_hi, False
+    out = shortest_decimal(lower, upper, lower_open, upper_open, value)
+    if col.exact is not None and out.is_integer() and abs(out) < 2**53:
+        return int(out)
+    return out
+
+
+def _page_window(col: Column, value: float) -> tuple[float, float]:
+    """The values within half a wire-code step of ``value`` (what the page cannot tell apart)."""
+    if col.log and col.lo > 0 and value > 0:
+        half = (math.log(col.hi) - math.log(col.lo)) / CODE_MAX / 2
+        return value * math.exp(-half), value * math.exp(half)
+    half = (col.hi / 2 - col.lo / 2) / CODE_MAX  # half of (hi - lo) / CODE_MAX, without overflow
+    if not math.isfinite(half):
+        return value, value
+    return value - half, value + half
+
+
+def shortest_decimal(lower: float, upper: float, lower_open: bool, upper_open: bool, near: float) -> float:
+    """The float of the decimal with the fewest significant digits inside the interval, nearest ``near``.
+
+    ``near`` must lie inside; it is the answer when nothing shorter does.
+    """
+
+    def inside(x: float) -> bool:
+        return (x > lower if lower_open else x >= lower) and (x < upper if upper_open else x <= upper)
+
+    if inside(0.0):
+        return 0.0
+    if not (math.isfinite(lower) and math.isfinite(upper)):
+        return near
+    top = math.floor(math.log10(max(abs(lower), abs(upper)))) + 1
+    with decimal.localcontext() as ctx:
+        ctx.prec = 80
+        lo_d, hi_d, near_d = decimal.Decimal(lower), decimal.Decimal(upper), decimal.Decimal(near)
+        for e in range(top, top - 25, -1):
+            step = decimal.Decimal(1).scaleb(e)
+            # one more on each side: a decimal just outside can be the float at a closed bound
+            k_lo = (lo_d / step).to_integral_value(rounding=decimal.ROUND_CEILING) - 1
+            k_hi = (hi_d / step).to_integral_value(rounding=decimal.ROUND_FLOOR) + 1
+            if k_hi - k_lo > 12:  # a coarser level would have held one of these; never reached
+                continue
+            ks = [k_lo + i for i in range(int(k_hi - k_lo) + 1)]
+            for k in sorted(ks, key=lambda k: abs(k - near_d / step)):
+                x = float(k.scaleb(e))
+                if inside(x):
+                    return x
+    return near
 
 
 def _exact_end(value, col: Column):
