@@ -3,6 +3,9 @@
 A selection is ``{axis name: [item, ...]}``. An item is
 
 * ``[lo, hi]`` — a range on a number, integer, datetime or timedelta axis, both ends inclusive.
+  On an ``integer`` (discrete) axis a single value ``v`` stands for ``[v, v]``: ``{"target": 1}``,
+  ``{"target": [1]}`` and ``{"target": [0, [2, 3]]}`` are accepted (two bare numbers stay the range
+  shorthand ``[lo, hi]``).
   ``None`` as an end leaves that side open (and takes in ``±inf`` values pinned at that end).
   Datetime ends are ISO 8601 strings (timezone offset included for tz-aware axes); timedelta ends
   are seconds;
@@ -62,6 +65,11 @@ def _number(value, axis: str, exact_int: bool = False) -> float | int | None:
     if exact_int and isinstance(value, int | np.integer) and not math.isinf(out):
         return int(value)  # compared exactly with the column's integers (float64 stops at 2**53)
     return out
+
+
+def _is_value(item) -> bool:
+    """A single number (not a bool, not a pair): one value on a discrete axis."""
+    return isinstance(item, Real | np.number) and not isinstance(item, bool | np.bool_ | np.timedelta64)
 
 
 def _short(value) -> str:
@@ -168,6 +176,9 @@ def normalise_items(items, col: Column) -> list:
     axis = col.name
     if items is None:
         return []
+    discrete = col.kind == "integer"
+    if discrete and _is_value(items):
+        items = [items]  # {"target": 1}: one value on a discrete axis
     if isinstance(items, str) or not isinstance(items, list | tuple | np.ndarray):
         raise SelectionError(f"selection on {axis!r}: expected a list of items, got {items!r}")
     items = list(items)
@@ -175,6 +186,8 @@ def normalise_items(items, col: Column) -> list:
     if not categorical and len(items) == 2 and not any(_is_pair(i) for i in items):
         if any(i is not None for i in items):  # [lo, hi] shorthand for one range
             items = [items]
+    if discrete:  # single values on a discrete axis: the range [v, v]
+        items = [[i, i] if _is_value(i) else i for i in items]
     spans, picked, lane = [], set(), False
     for item in items:
         if item is None:
@@ -203,7 +216,8 @@ def normalise_items(items, col: Column) -> list:
             picked.add(label)
         else:
             if not _is_pair(item) or len(item) != 2:
-                raise SelectionError(f"range on {axis!r}: expected a pair [lo, hi], got {item!r}")
+                hint = " (single values are taken on integer axes only)" if _is_value(item) else ""
+                raise SelectionError(f"range on {axis!r}: expected a pair [lo, hi], got {item!r}{hint}")
             lo, hi = _end(item[0], col, "lo"), _end(item[1], col, "hi")
             if lo is not None and hi is not None and _end_key(lo, col) > _end_key(hi, col):
                 raise SelectionError(f"range on {axis!r}: lo {lo!r} is greater than hi {hi!r}")
