@@ -4,12 +4,12 @@
 // present on both axes. Codes are quantised values (or category band numbers), so ranks are those of
 // the quantised values; this is what the readout between neighbours shows.
 
-import { CODE_MISSING } from "./data";
+import { CODE_COUNT, CODE_MISSING } from "./wire";
 
 export function rankCorrelation(ca: Uint16Array, cb: Uint16Array): number {
   const n = ca.length;
-  const ha = new Float64Array(65536);
-  const hb = new Float64Array(65536);
+  const ha = new Float64Array(CODE_COUNT);
+  const hb = new Float64Array(CODE_COUNT);
   let m = 0;
   for (let i = 0; i < n; i++) {
     const a = ca[i];
@@ -22,7 +22,7 @@ export function rankCorrelation(ca: Uint16Array, cb: Uint16Array): number {
   if (m < 2) return NaN;
   const ranks = (h: Float64Array) => {
     let below = 0;
-    for (let c = 0; c < 65536; c++) {
+    for (let c = 0; c < CODE_COUNT; c++) {
       const k = h[c];
       if (k) {
         h[c] = below + (k + 1) / 2;

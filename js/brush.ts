@@ -16,7 +16,7 @@
 
 import { axisAt, type Layout } from "./layout";
 import type { AxisScale } from "./scales";
-import { cloneSel, emptyAxis, isEmpty, tidy, type Sel } from "./selection";
+import { cloneSel, emptyAxis, isEmpty, own, tidy, type Sel } from "./selection";
 
 export interface BrushHost {
   layout(): Layout;
@@ -63,7 +63,7 @@ export function hitTest(host: BrushHost, x: number, y: number): Hit | null {
     const band = sc.bandAt(y);
     return band >= 0 ? { kind: "band", axis: name, index, band } : { kind: "empty", axis: name, index };
   }
-  const spans = host.selection()[name]?.spans ?? [];
+  const spans = own(host.selection(), name)?.spans ?? [];
   const px = spans.map(([lo, hi]) => [sc.toPixel(hi), sc.toPixel(lo)]);
   // ends first (they may sit just outside a thin band), then bodies
   for (let s = 0; s < spans.length; s++) {
@@ -88,7 +88,7 @@ function headerAt(layout: Layout, x: number): number {
 }
 
 /** The order with one axis moved to the slot nearest x. */
-function movedOrder(layout: Layout, from: number, x: number): string[] {
+export function movedOrder(layout: Layout, from: number, x: number): string[] {
   const names = layout.slots.map((s) => s.name);
   let to = 0;
   let best = Infinity;
@@ -114,6 +114,56 @@ const CURSOR: Record<string, string> = {
   header: "grab",
 };
 
+// -- gesture reducers: the selection a gesture makes (pure; unit-tested in js/test/brush.test.ts) ------
+
+/** The selection a drag from y0 to y makes, starting from `start` (`sc`: the scale of the hit axis). */
+export function draggedSel(start: Sel, hit: Hit, sc: AxisScale, y0: number, y: number): Sel {
+  const out = cloneSel(start);
+  const s = (out[hit.axis] ??= emptyAxis());
+  const v = sc.toValue(y);
+  if (hit.kind === "band") {
+    const a = sc.bandAt(y0);
+    let b = sc.bandAt(y);
+    if (b < 0) b = y < y0 ? sc.bands.length - 1 : 0;
+    for (let c = Math.min(a, b); c <= Math.max(a, b); c++) if (!s.bands.includes(c)) s.bands.push(c);
+  } else if (hit.kind === "create") {
+    const v0 = sc.toValue(y0);
+    s.spans.push([Math.min(v0, v), Math.max(v0, v)]);
+  } else if (hit.kind === "move") {
+    const [lo, hi] = start[hit.axis].spans[hit.span];
+    const finite = isFinite(lo) && isFinite(hi);
+    let delta = v - sc.toValue(y0);
+    if (finite) delta = Math.min(Math.max(delta, sc.axis.lo - lo), sc.axis.hi - hi);
+    s.spans[hit.span] = [lo + delta, hi + delta];
+  } else if (hit.kind === "lo" || hit.kind === "hi") {
+    const [lo, hi] = start[hit.axis].spans[hit.span];
+    s.spans[hit.span] = hit.kind === "hi" ? [Math.min(lo, v), Math.max(lo, v)] : [Math.min(v, hi), Math.max(v, hi)];
+  }
+  return out;
+}
+
+/** The selection after a click (no drag) on `hit`. */
+export function clickedSel(start: Sel, hit: Hit): Sel {
+  const out = cloneSel(start);
+  const s = (out[hit.axis] ??= emptyAxis());
+  if (hit.kind === "lane") s.lane = !s.lane;
+  else if (hit.kind === "band") {
+    const at = s.bands.indexOf(hit.band);
+    if (at >= 0) s.bands.splice(at, 1);
+    else s.bands.push(hit.band);
+  } else if (hit.kind === "create" || hit.kind === "empty") delete out[hit.axis];
+  if (isEmpty(out[hit.axis])) delete out[hit.axis];
+  return out;
+}
+
+/** The selection without one range of an axis (a double-click on it). */
+export function withoutSpan(start: Sel, axis: string, span: number): Sel {
+  const out = cloneSel(start);
+  out[axis].spans.splice(span, 1);
+  if (isEmpty(out[axis])) delete out[axis];
+  return out;
+}
+
 export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
   let drag: { hit: Hit; x0: number; y0: number; start: Sel; moved: boolean; order: string[] } | null = null;
 
@@ -123,49 +173,8 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
   };
 
   /** The selection the drag in progress describes, with the pointer at y. */
-  const dragged = (y: number): Sel => {
-    const d = drag!;
-    const hit = d.hit;
-    const sc = host.scales()[hit.index];
-    const out = cloneSel(d.start);
-    const s = (out[hit.axis] ??= emptyAxis());
-    const v = sc.toValue(y);
-    if (hit.kind === "band") {
-      const a = sc.bandAt(d.y0);
-      let b = sc.bandAt(y);
-      if (b < 0) b = y < d.y0 ? sc.bands.length - 1 : 0;
-      for (let c = Math.min(a, b); c <= Math.max(a, b); c++) if (!s.bands.includes(c)) s.bands.push(c);
-    } else if (hit.kind === "create") {
-      const v0 = sc.toValue(d.y0);
-      s.spans.push([Math.min(v0, v), Math.max(v0, v)]);
-    } else if (hit.kind === "move") {
-      const [lo, hi] = d.start[hit.axis].spans[hit.span];
-      const finite = isFinite(lo) && isFinite(hi);
-      let delta = v - sc.toValue(d.y0);
-      if (finite) delta = Math.min(Math.max(delta, sc.axis.lo - lo), sc.axis.hi - hi);
-      s.spans[hit.span] = [lo + delta, hi + delta];
-    } else if (hit.kind === "lo" || hit.kind === "hi") {
-      const [lo, hi] = d.start[hit.axis].spans[hit.span];
-      s.spans[hit.span] = hit.kind === "hi" ? [Math.min(lo, v), Math.max(lo, v)] : [Math.min(v, hi), Math.max(v, hi)];
-    }
-    return out;
-  };
-
-  /** The selection after a click (no drag). */
-  const clicked = (): Sel => {
-    const d = drag!;
-    const hit = d.hit;
-    const out = cloneSel(d.start);
-    const s = (out[hit.axis] ??= emptyAxis());
-    if (hit.kind === "lane") s.lane = !s.lane;
-    else if (hit.kind === "band") {
-      const at = s.bands.indexOf(hit.band);
-      if (at >= 0) s.bands.splice(at, 1);
-      else s.bands.push(hit.band);
-    } else if (hit.kind === "create" || hit.kind === "empty") delete out[hit.axis];
-    if (isEmpty(out[hit.axis])) delete out[hit.axis];
-    return out;
-  };
+  const dragged = (y: number): Sel => draggedSel(drag!.start, drag!.hit, host.scales()[drag!.hit.index], drag!.y0, y);
+  const clicked = (): Sel => clickedSel(drag!.start, drag!.hit);
 
   const down = (e: PointerEvent) => {
     if (e.button !== 0) return;
@@ -226,10 +235,7 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
     const { x, y } = local(e);
     const hit = hitTest(host, x, y);
     if (!hit || hit.kind !== "move") return;
-    const out = cloneSel(host.selection());
-    out[hit.axis].spans.splice(hit.span, 1);
-    if (isEmpty(out[hit.axis])) delete out[hit.axis];
-    host.commit(tidy(out));
+    host.commit(tidy(withoutSpan(host.selection(), hit.axis, hit.span)));
   };
 
   canvas.addEventListener("pointerdown", down);

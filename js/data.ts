@@ -1,9 +1,8 @@
 // Decode the kernel's `table` trait into typed columns, without copying the binary buffers.
 
-/** Largest quantisation code; codes 0..CODE_MAX map linearly (or logarithmically) onto [lo, hi]. */
-export const CODE_MAX = 65534;
-/** Code reserved for a missing value. */
-export const CODE_MISSING = 65535;
+import { CODE_MAX, CODE_MISSING } from "./wire";
+
+export { CODE_MAX, CODE_MISSING };
 
 export type Kind = "number" | "integer" | "category" | "boolean" | "datetime" | "timedelta";
 
@@ -106,7 +105,8 @@ export function fraction(a: AxisData, v: number): number {
 /** The value at position f (0..1) of a numeric axis. */
 export function valueAt(a: AxisData, f: number): number {
   if (a.log) return Math.exp(Math.log(a.lo) + f * (Math.log(a.hi) - Math.log(a.lo)));
-  return a.lo + f * (a.hi * 0.5 - a.lo * 0.5) * 2;
+  // in halves, like the kernel's quantisation, so that [-1e308, 1e308] does not overflow
+  return (a.lo * 0.5 + f * (a.hi * 0.5 - a.lo * 0.5)) * 2;
 }
 
 /** The value (axis units) a numeric wire code stands for, to the quantisation step. */

@@ -1,12 +1,21 @@
 // Drawing one slice of rows as polylines into two accumulators — shared by the page and the workers.
 
-import { CODE_MISSING } from "./data";
+import { CATEGORY_BAND_LIMIT, CODE_MISSING, HIST_BINS, histBin } from "./wire";
 import type { Accumulator } from "./raster";
 
 export type RGB = [number, number, number];
 
-/** Marginal histograms have this many bins per axis: bin = code >> 10. */
-export const HIST_BINS = 64;
+export { HIST_BINS };
+
+/**
+ * Bundling keeps one centre per (gap, category band): the bands of a category axis (at most
+ * CATEGORY_BAND_LIMIT plus the shared band of rarer labels), and a last slot for missing values.
+ */
+export const BUNDLE_SLOTS = CATEGORY_BAND_LIMIT + 2;
+const LAST_SLOT = BUNDLE_SLOTS - 1;
+
+/** The bundling slot of a code on the bundling axis. */
+export const bundleSlot = (code: number): number => (code === CODE_MISSING ? LAST_SLOT : Math.min(LAST_SLOT, code));
 
 /** Everything needed to draw rows; plain arrays only, so it can be posted to a worker. */
 export interface LinesSetup {
@@ -31,20 +40,20 @@ export interface LinesSetup {
   bundle: { axis: number; strength: number; centres: Float64Array } | null;
 }
 
-/** Mean mid-point y (device px) per gap and category (64 slots, the last for missing/other). */
+/** Mean mid-point y (device px) per gap and category (BUNDLE_SLOTS slots, the last for missing). */
 export function bundleCentres(setup: LinesSetup, axis: number, i0: number, i1: number, sums: Float64Array, counts: Float64Array) {
   const { codes, bases, heights, spread, dpr } = setup;
   const k = codes.length;
   const bcodes = codes[axis];
   for (let i = i0; i < i1; i++) {
-    const g = Math.min(63, bcodes[i] === CODE_MISSING ? 63 : bcodes[i]);
+    const g = bundleSlot(bcodes[i]);
     counts[g]++;
     for (let a = 0; a + 1 < k; a++) {
       const ca = codes[a][i];
       const cb = codes[a + 1][i];
       const ya = (bases[a][ca] + spread[i] * heights[a][ca]) * dpr;
       const yb = (bases[a + 1][cb] + spread[i] * heights[a + 1][cb]) * dpr;
-      sums[a * 64 + g] += (ya + yb) / 2;
+      sums[a * BUNDLE_SLOTS + g] += (ya + yb) / 2;
     }
   }
 }
@@ -101,7 +110,7 @@ export function linesDrawer(
         const c = col[i];
         ys[at] = (base[c] + spread[i] * height[c]) * dpr;
         if (c !== CODE_MISSING) {
-          const hb = c >> 10;
+          const hb = histBin(c);
           all[hb]++;
           if (filterSel[r]) chosen[hb]++;
         }
@@ -112,10 +121,10 @@ export function linesDrawer(
       const rowBase = r * axesOut;
       if (bundle) {
         const bc = codes[bundle.axis][i];
-        const g = Math.min(63, bc === CODE_MISSING ? 63 : bc);
+        const g = bundleSlot(bc);
         for (let a = 0; a + 1 < k; a++) {
           const mid = (ys[rowBase + 2 * a] + ys[rowBase + 2 * a + 2]) / 2;
-          ys[rowBase + 2 * a + 1] = (1 - s) * mid + s * bundle.centres[a * 64 + g];
+          ys[rowBase + 2 * a + 1] = (1 - s) * mid + s * bundle.centres[a * BUNDLE_SLOTS + g];
         }
       }
       if (group) {

@@ -12,9 +12,10 @@
 //             (frequency-based parallel coordinates, Artero et al. 2004).
 
 import { type Colouring, type RGB } from "./colour";
-import { CODE_MISSING, isCategorical, type Table } from "./data";
+import { isCategorical, type Table } from "./data";
 import type { Layout } from "./layout";
-import { bundleCentres, HIST_BINS, linesDrawer, type LinesSetup } from "./linespass";
+import { BUNDLE_SLOTS, bundleCentres, linesDrawer, type LinesSetup } from "./linespass";
+import { CODE_MAX, CODE_MISSING, DENSITY_BINS, densityBins, HIST_BINS, histBin } from "./wire";
 import { Accumulator, gainForOpacity } from "./raster";
 import { WorkerPool } from "./workers";
 import type { AxisScale } from "./scales";
@@ -50,6 +51,8 @@ export interface PaintResult {
   /** per axis in the layout: selected-row counts in HIST_BINS bins along the axis (numeric axes) */
   histSelected: Uint32Array[];
   histAll: Uint32Array[];
+  /** the bundling the lines were drawn with (centres in CSS px per gap and slot), for hovering */
+  bundle: { axis: number; strength: number; centres: Float64Array } | null;
 }
 
 /** What one painting pass works with. */
@@ -61,11 +64,14 @@ interface Pass {
   fad: Accumulator;
   histSelected: Uint32Array[];
   histAll: Uint32Array[];
+  /** set by the lines pass when it bundles (centres in device px) */
+  bundle: LinesSetup["bundle"];
   /** run a body over all rows in chunks; false when the job was abandoned */
   chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>;
 }
 
-export const BINS = 128;
+/** Bins per axis in the density view (the wire contract's, as in density.py). */
+export const BINS = DENSITY_BINS;
 const CHUNK_MS = 14;
 /** Tables with at least this many cells (rows x axes) are drawn by Web Workers in lines mode. */
 const WORKER_CELLS = 400_000;
@@ -176,15 +182,17 @@ export class LinePainter {
       return true;
     };
 
+    let bundle: PaintResult["bundle"] = null;
     if (k >= 2 && n > 0) {
       const xs = new Float32Array(job.layout.slots.map((s) => s.x * job.dpr));
-      const pass: Pass = { job, codes, xs, sel, fad, histSelected, histAll, chunked };
+      const pass: Pass = { job, codes, xs, sel, fad, histSelected, histAll, bundle: null, chunked };
       const ok = job.mode === "density" ? await this.density(pass) : await this.lines(pass);
       if (!ok || token !== this.token) return;
+      if (pass.bundle) bundle = { ...pass.bundle, centres: pass.bundle.centres.map((y) => y / job.dpr) };
     }
     show();
     this.onProgress(null);
-    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers });
+    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers, bundle });
   }
 
   private async lines(pass: Pass): Promise<boolean> {
@@ -206,13 +214,14 @@ export class LinePainter {
     };
     if (job.bundle) {
       // bundling: a mid point per gap, pulled toward the mean mid point of the row's category
-      const sums = new Float64Array((k - 1) * 64);
-      const counts = new Float64Array(64);
+      const sums = new Float64Array((k - 1) * BUNDLE_SLOTS);
+      const counts = new Float64Array(BUNDLE_SLOTS);
       const axis = job.bundle.axis;
       const ok = await chunked((i0, i1) => bundleCentres(setup, axis, i0, i1, sums, counts), [0, 0.2]);
       if (!ok) return false;
-      for (let a = 0; a + 1 < k; a++) for (let g = 0; g < 64; g++) if (counts[g]) sums[a * 64 + g] /= counts[g];
+      for (let a = 0; a + 1 < k; a++) for (let g = 0; g < BUNDLE_SLOTS; g++) if (counts[g]) sums[a * BUNDLE_SLOTS + g] /= counts[g];
       setup.bundle = { axis, strength: job.bundle.strength, centres: sums };
+      pass.bundle = setup.bundle;
     }
     const share: [number, number] = [job.bundle ? 0.2 : 0, 1];
     const pool = this.workerPool(job.table.n * k);
@@ -284,15 +293,9 @@ export class LinePainter {
       return palette[Math.min(palette.length - 2, Math.round(((g + 0.5) * (palette.length - 1)) / 8))];
     };
     const B = BINS + 1; // last bin: missing
-    // bin of every code per axis: floor(code * BINS / 65535) as in density.py; category bands keep
-    // their band number; the missing code gets the last bin
-    const luts = job.scales.map((sc) => {
-      const lut = new Uint8Array(65536);
-      const categorical = isCategorical(sc.axis);
-      for (let c = 0; c < 65535; c++) lut[c] = categorical ? Math.min(BINS - 1, c) : Math.floor((c * BINS) / 65535);
-      lut[CODE_MISSING] = BINS;
-      return lut;
-    });
+    // bin of every code per axis: floor(code * BINS / CODE_MISSING) as in density.py; category bands
+    // keep their band number; the missing code gets the last bin
+    const luts = job.scales.map((sc) => densityBins(BINS, isCategorical(sc.axis)));
     const cells = B * B;
     const selCounts = Array.from({ length: k - 1 }, () => new Uint32Array(G * cells));
     const fadCounts = Array.from({ length: k - 1 }, () => new Uint32Array(cells));
@@ -306,7 +309,7 @@ export class LinePainter {
           bins[a] = b;
           const c = codes[a][i];
           if (c !== CODE_MISSING) {
-            const hb = c >> 10;
+            const hb = histBin(c);
             histAll[a][hb]++;
             if (on) histSelected[a][hb]++;
           }
@@ -323,7 +326,7 @@ export class LinePainter {
         if (isCategorical(sc.axis)) {
           const band = sc.bands[b];
           ys[b] = band ? ((band.y0 + band.y1) / 2) * job.dpr : NaN;
-        } else ys[b] = sc.codePixel(Math.min(65534, ((b + 0.5) * 65535) / BINS)) * job.dpr;
+        } else ys[b] = sc.codePixel(Math.min(CODE_MAX, ((b + 0.5) * CODE_MISSING) / BINS)) * job.dpr;
       }
       ys[BINS] = job.layout.laneY * job.dpr;
       return ys;

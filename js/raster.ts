@@ -40,11 +40,31 @@
  */
 
 /** Guard cells on every side of the visible area (the band overhangs at most 2 cells). */
-const GUARD = 3;
+export const GUARD = 3;
 /** Minor-axis margin (px) kept when clipping: beyond it the 1-px band cannot reach the buffer. */
 const MARGIN = 1.5;
 /** `polylines` draws per-row colours with more distinct values than this without grouping. */
 const MAX_GROUPS = 4096;
+
+/**
+ * The curve between two axes, as fractions of the gap: a cubic with horizontal tangents at both ends
+ * and control points at half the x gap. At parameter t in [0, 1] it is at x = curveX(t), y = curveY(t)
+ * (0 at the left axis, 1 at the right one). Both rise monotonically from 0 to 1.
+ */
+export const curveX = (t: number): number => t * (1.5 - 1.5 * t + t * t);
+export const curveY = (t: number): number => t * t * (3 - 2 * t);
+
+/** The height fraction of the curve where it crosses the gap fraction `x` (0..1). */
+export function curveYAtX(x: number): number {
+  let lo = 0;
+  let hi = 1;
+  for (let k = 0; k < 24; k++) {
+    const t = (lo + hi) / 2;
+    if (curveX(t) < x) lo = t;
+    else hi = t;
+  }
+  return curveY((lo + hi) / 2);
+}
 
 /** Clamp a colour component into [0, 1]; NaN becomes 0. */
 function unit(v: number): number {
@@ -264,45 +284,6 @@ export class Accumulator {
     }
   }
 
-  /** Accumulated weight at visible pixel (x, y); 0 outside the buffer. */
-  weightAt(x: number, y: number): number {
-    if (!(x >= 0 && x < this.width && y >= 0 && y < this.height)) return 0;
-    const p = (Math.floor(y) + GUARD) * this.stride + Math.floor(x) + GUARD;
-    return this.pend[p] + (this.totUsed && this.tot !== null ? this.tot[4 * p] : 0);
-  }
-
-  /** Weight-averaged colour [r, g, b] (0..1) at visible pixel (x, y), or null if it is empty. */
-  colourAt(x: number, y: number): [number, number, number] | null {
-    const w = this.weightAt(x, y);
-    if (!(w > 0)) return null;
-    const p = (Math.floor(y) + GUARD) * this.stride + Math.floor(x) + GUARD;
-    const wp = this.pend[p];
-    const tot = this.totUsed ? this.tot : null;
-    if (tot === null) return [this.pr, this.pg, this.pb];
-    const q = 4 * p;
-    return [(tot[q + 1] + this.pr * wp) / w, (tot[q + 2] + this.pg * wp) / w, (tot[q + 3] + this.pb * wp) / w];
-  }
-
-  /** Copy of the visible weights (width × height, row-major), for example to choose a gain. */
-  weights(): Float32Array {
-    const W = this.width;
-    const out = new Float32Array(W * this.height);
-    const tot = this.totUsed ? this.tot : null;
-    for (let y = 0, o = 0; y < this.height; y++) {
-      const p0 = (y + GUARD) * this.stride + GUARD;
-      for (let p = p0; p < p0 + W; p++, o++) out[o] = this.pend[p] + (tot !== null ? tot[4 * p] : 0);
-    }
-    return out;
-  }
-
-  /** Largest visible weight. */
-  maxWeight(): number {
-    const w = this.weights();
-    let m = 0;
-    for (let i = 0; i < w.length; i++) if (w[i] > m) m = w[i];
-    return m;
-  }
-
   // ---------------------------------------------------------------------------------------
   // internals
 
@@ -429,10 +410,9 @@ export class Accumulator {
     let py = y0;
     for (let s = 1; s <= n; s++) {
       const t = s / n;
-      // Control points (x0 + dx/2, y0) and (x1 − dx/2, y1):
-      // x(t) = x0 + dx·(1.5t − 1.5t² + t³), y(t) = y0 + dy·(3t² − 2t³).
-      const x = s === n ? x1 : x0 + dx * t * (1.5 - 1.5 * t + t * t);
-      const y = s === n ? y1 : y0 + dy * t * t * (3 - 2 * t);
+      // Control points (x0 + dx/2, y0) and (x1 − dx/2, y1): see curveX / curveY.
+      const x = s === n ? x1 : x0 + dx * curveX(t);
+      const y = s === n ? y1 : y0 + dy * curveY(t);
       this.seg(px, py, x, y, w);
       px = x;
       py = y;

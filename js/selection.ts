@@ -6,6 +6,8 @@
 // and null for the missing-values lane.
 
 import { bandCount, CODE_MAX, CODE_MISSING, fraction, isCategorical, type AxisData, type Table } from "./data";
+import { calendar } from "./scales";
+import { CODE_COUNT } from "./wire";
 
 export type Span = [number, number];
 
@@ -17,22 +19,35 @@ export interface AxisSel {
   lane: boolean;
 }
 
+/**
+ * Selections are keyed by axis name, and axis names come from the data: any name, `__proto__` and
+ * `constructor` included. So these records have no prototype (see `record`) and are read with
+ * `own` only.
+ */
 export type Sel = Record<string, AxisSel>;
 export type TraitItem = [number | string | null, number | string | null] | string | null | { rest: true };
 export type TraitRanges = Record<string, TraitItem[]>;
+
+/** An empty record keyed by data (no prototype: no inherited keys, `__proto__` is a plain key). */
+export const record = <T>(): Record<string, T> => Object.create(null);
+
+/** The value under an own key of a record keyed by data, or undefined. */
+export function own<T>(rec: Record<string, T> | null | undefined, key: string): T | undefined {
+  return rec && Object.prototype.hasOwnProperty.call(rec, key) ? rec[key] : undefined;
+}
 
 export const emptyAxis = (): AxisSel => ({ spans: [], bands: [], lane: false });
 export const isEmpty = (s: AxisSel | undefined) => !s || (!s.spans.length && !s.bands.length && !s.lane);
 
 export function cloneSel(sel: Sel): Sel {
-  const out: Sel = {};
+  const out: Sel = record();
   for (const [k, v] of Object.entries(sel)) out[k] = { spans: v.spans.map((s) => [s[0], s[1]] as Span), bands: [...v.bands], lane: v.lane };
   return out;
 }
 
 /** Sorted spans with overlaps merged, bands sorted and unique; empty axes dropped. */
 export function tidy(sel: Sel): Sel {
-  const out: Sel = {};
+  const out: Sel = record();
   for (const [axis, s] of Object.entries(sel)) {
     const sorted = s.spans.map(([a, b]) => (a <= b ? [a, b] : [b, a]) as Span).sort((p, q) => p[0] - q[0]);
     const merged: Span[] = [];
@@ -68,20 +83,37 @@ function endToUnits(a: AxisData, v: number | string | null, side: 0 | 1): number
   return Number(v);
 }
 
+const pad = (v: number, width = 2) => String(v).padStart(width, "0");
+
+/**
+ * A time (ms since the epoch) in the kernel's normal form, pandas' `Timestamp.isoformat()`: the wall
+ * clock (in the axis's time zone, with its UTC offset, on a tz-aware axis), and microseconds only when
+ * there is a fraction of a second.
+ */
+export function isoTime(ms: number, tz: string | null): string {
+  const whole = Math.floor(ms / 1000) * 1000;
+  const c = calendar(whole, tz);
+  let text = `${pad(c.Y, 4)}-${pad(c.M)}-${pad(c.D)}T${pad(c.h)}:${pad(c.m)}:${pad(c.s)}`;
+  if (ms !== whole) text += `.${pad(Math.round((ms - whole) * 1000), 6)}`;
+  if (tz) {
+    const offset = Math.round((Date.UTC(c.Y, c.M - 1, c.D, c.h, c.m, c.s) - whole) / 60000);
+    const size = Math.abs(offset);
+    text += `${offset < 0 ? "-" : "+"}${pad(Math.floor(size / 60))}:${pad(size % 60)}`;
+  }
+  return text;
+}
+
 /** A range end in the trait's form; integer axes round inward (lo up, hi down) to whole values. */
 function unitsToEnd(a: AxisData, v: number, side: 0 | 1): number | string | null {
   if (!isFinite(v)) return null;
-  if (a.kind === "datetime") {
-    const iso = new Date(Math.round(v / 1e6)).toISOString();
-    return a.tz ? iso : iso.slice(0, -1);
-  }
+  if (a.kind === "datetime") return isoTime(Math.round(v / 1e6), a.tz);
   if (a.kind === "timedelta") return Math.round(v / 1e6) / 1e3;
   if (a.kind === "integer") return side === 0 ? Math.ceil(v - 1e-9) : Math.floor(v + 1e-9);
   return v;
 }
 
 export function fromTrait(table: Table, raw: TraitRanges | null | undefined): Sel {
-  const out: Sel = {};
+  const out: Sel = record();
   for (const [name, items] of Object.entries(raw ?? {})) {
     const a = table.byName.get(name);
     if (!a || !Array.isArray(items)) continue;
@@ -103,20 +135,33 @@ export function fromTrait(table: Table, raw: TraitRanges | null | undefined): Se
 
 /**
  * The trait form of a selection. Axes whose selection equals the one read from `previous` keep the
- * previous trait items verbatim, so values the page cannot represent exactly (nanoseconds) survive.
+ * previous trait items verbatim, and so do unchanged ranges on an edited axis: values the page cannot
+ * represent exactly (nanoseconds) survive, and an end the kernel set is never reinterpreted.
  */
 export function toTrait(table: Table, sel: Sel, previous: TraitRanges | null | undefined): TraitRanges {
-  const out: TraitRanges = {};
+  const out: TraitRanges = record();
   const prevSel = fromTrait(table, previous);
   for (const [name, s] of Object.entries(tidy(sel))) {
     const a = table.byName.get(name);
     if (!a) continue;
-    if (previous?.[name] && prevSel[name] && selKey({ x: prevSel[name] }) === selKey({ x: s })) {
-      out[name] = previous[name];
+    const before = own(previous, name);
+    const beforeSel = own(prevSel, name);
+    if (before && beforeSel && selKey({ x: beforeSel }) === selKey({ x: s })) {
+      out[name] = before;
       continue;
     }
     const items: TraitItem[] = [];
+    // ranges kept as they were (the user changed another one on this axis) keep their previous text
+    const kept = new Map<string, TraitItem>();
+    for (const item of before ?? []) {
+      if (Array.isArray(item)) kept.set(`${endToUnits(a, item[0], 0)} ${endToUnits(a, item[1], 1)}`, item);
+    }
     for (const [lo, hi] of s.spans) {
+      const same = kept.get(`${lo} ${hi}`);
+      if (same) {
+        items.push(same);
+        continue;
+      }
       // an end dragged onto the end of an axis that holds ±inf values takes them in (open end)
       const l = lo <= a.lo && a.inf[0] > 0 ? -Infinity : lo;
       const h = hi >= a.hi && a.inf[1] > 0 ? Infinity : hi;
@@ -147,8 +192,8 @@ export function previewMask(table: Table, sel: Sel): { mask: Uint8Array; count: 
   for (const [name, s] of Object.entries(sel)) {
     const axis = table.byName.get(name);
     if (!axis || isEmpty(s)) continue;
-    // a lookup table over all 65536 codes: is this code picked?
-    const lut = new Uint8Array(65536);
+    // a lookup table over every code: is this code picked?
+    const lut = new Uint8Array(CODE_COUNT);
     if (isCategorical(axis)) {
       const k = bandCount(axis);
       for (const b of s.bands) if (b < k) lut[b] = 1;

@@ -7,24 +7,18 @@
 // Every page answers through the first live view of the model it holds; the kernel keeps the first
 // answer to an id and ignores the rest (several browser tabs may show the same kernel).
 
-import { readTheme } from "./draw";
+import { viewHooks } from "./hooks";
+import type { WidgetModel } from "./model";
+import { readTheme } from "./theme";
+// page -> server websocket messages above 10 MiB are dropped silently: PNG_MAX_BYTES stays well below
+import { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE } from "./wire";
 
-export const PNG_MESSAGE = "axw:png";
-/** Page -> server websocket messages above 10 MiB are dropped silently: stay well below. */
-export const PNG_MAX_BYTES = 8 * 1024 * 1024;
-export const PNG_MAX_SCALE = 4;
+export { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE };
 
 type Handler = (content: any, buffers?: unknown[]) => void;
 
 /** The parts of the anywidget model that sharing needs. */
-export interface SharingModel {
-  get(name: string): any;
-  set(name: string, value: unknown): void;
-  save_changes(): void;
-  on(event: string, cb: Handler): void;
-  off(event: string, cb: Handler): void;
-  send?(content: unknown, callbacks?: unknown, buffers?: ArrayBuffer[]): void;
-}
+export type SharingModel = WidgetModel;
 
 /** Live views in this page, per model, oldest first. */
 const liveViews = new WeakMap<object, string[]>();
@@ -36,7 +30,7 @@ function randomId(): string {
 }
 
 function setViews(model: SharingModel, change: (ids: string[]) => string[]) {
-  const now = (model.get("views") as string[] | undefined) ?? [];
+  const now = model.get("views") ?? [];
   model.set("views", change(now.slice()));
   model.save_changes();
 }
@@ -73,7 +67,7 @@ export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob
   ctx.imageSmoothingEnabled = true;
   ctx.imageSmoothingQuality = "high";
   // drawn afresh at this scale when the view offers it (sharp at any scale), else the screen's canvases
-  const hook = (root as unknown as { __axw?: { layersAt?: (s: number) => Promise<HTMLCanvasElement[]> } }).__axw;
+  const hook = viewHooks(root);
   const fresh = hook?.layersAt ? await hook.layersAt(scale).catch(() => null) : null;
   for (const layer of fresh ?? layers) if (layer.width > 0 && layer.height > 0) ctx.drawImage(layer, 0, 0, width, height);
   const status = root.querySelector(".axw-status")?.textContent ?? "";

@@ -1,9 +1,11 @@
 // anywidget entry point: wiring only. Each output cell showing the widget gets its own View.
 
-import { attachSharing, type SharingModel } from "./snapshot";
-import { View, type Model } from "./view";
+import type { WidgetModel } from "./model";
+import { attachSharing } from "./snapshot";
+import { ensureStyles } from "./style";
+import { View } from "./view";
 
-function render({ model, el }: { model: Model; el: HTMLElement }) {
+function render({ model, el }: { model: WidgetModel; el: HTMLElement }) {
   let view: View;
   try {
     view = new View(model, el);
@@ -11,13 +13,13 @@ function render({ model, el }: { model: Model; el: HTMLElement }) {
     // never a blank widget: say what went wrong
     const box = document.createElement("pre");
     box.className = "axw-error";
-    box.style.cssText = "color:#b00020;white-space:pre-wrap;";
     box.textContent = `axeswidget could not draw this table: ${(err as Error)?.message ?? err}`;
     el.appendChild(box);
+    ensureStyles(box);
     return () => box.remove();
   }
   // a page without a kernel (an exported file) has nobody to register with or answer
-  const detach = model.get("_standalone") ? () => {} : attachSharing(model as unknown as SharingModel, view.root);
+  const detach = model.get("_standalone") ? () => {} : attachSharing(model, view.root);
   return () => {
     detach();
     view.destroy();

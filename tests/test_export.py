@@ -233,9 +233,14 @@ def test_wait_times_out_with_an_explanation(shown, tmp_path):
 
 
 def test_the_page_and_the_kernel_agree_on_the_protocol():
+    # the page takes the PNG message and limits from the wire contract (js/wire.ts bundles wire.json);
+    # tests/test_conformance.py reads them back from the page's own code
+    from axeswidget import wire
+
     ts = (Path(__file__).parents[1] / "js" / "snapshot.ts").read_text()
-    assert f'PNG_MESSAGE = "{export.PNG_MESSAGE}"' in ts
-    assert f"PNG_MAX_SCALE = {export.MAX_SCALE:g}" in ts
+    assert 'import { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE } from "./wire";' in ts
+    assert wire.PNG_MESSAGE == export.PNG_MESSAGE
+    assert wire.PNG_MAX_SCALE == export.MAX_SCALE
 
 
 def test_save_png_needs_an_axes_widget(tmp_path):

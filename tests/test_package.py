@@ -29,8 +29,9 @@ def test_every_public_name_exists():
         assert getattr(aw, name) is not None, name
 
 
-def test_export_imports_nothing_from_the_package():
-    # export.py is handed the widget (and the version) by widget.py: it must not import widget.py back
+def test_export_imports_only_the_wire_contract_from_the_package():
+    # export.py is handed the widget (and the version) by widget.py: it must not import widget.py back;
+    # the wire contract (a leaf module with no imports of its own from the package) is allowed
     tree = ast.parse((ROOT / "src" / "axeswidget" / "export.py").read_text())
     relative = [node.module for node in ast.walk(tree) if isinstance(node, ast.ImportFrom) and node.level]
     absolute = [
@@ -40,7 +41,7 @@ def test_export_imports_nothing_from_the_package():
         for alias in node.names
         if alias.name.startswith("axeswidget")
     ]
-    assert relative == [] and absolute == []
+    assert set(relative) <= {"wire"} and absolute == []
 
 
 def test_standalone_page_names_the_package_version():

@@ -10,6 +10,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import axeswidget as aw
+from axeswidget.encode import encode_frame
+from axeswidget.selection import MaskEvaluator, normalise
 
 
 @pytest.fixture
@@ -122,3 +124,25 @@ def test_mask_equals_pandas_between_property(values, spans):
     for lo, hi in spans:
         ref |= df["x"].between(lo, hi).to_numpy()
     np.testing.assert_array_equal(w.mask, ref)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.lists(st.tuples(st.integers(0, 3), st.floats(-2, 2), st.floats(0, 2)), min_size=1, max_size=12))
+def test_incremental_mask_equals_fresh_evaluation(steps):
+    """Dragging one axis reuses the AND of the others; after every step the mask equals a fresh
+    evaluation and the pandas reference."""
+    rng = np.random.default_rng(3)
+    df = pd.DataFrame(rng.normal(size=(500, 4)), columns=list("abcd"))
+    df.iloc[::17, 1] = np.nan
+    cols = encode_frame(df)
+    ev = MaskEvaluator(cols, len(df))
+    ranges = {}
+    for axis, lo, width in steps:
+        name = "abcd"[axis]
+        ranges = {**ranges, name: [[lo, lo + width]]}
+        got = ev.update(normalise(ranges, cols))
+        ref = np.ones(len(df), dtype=bool)
+        for k, [[a, b]] in ranges.items():
+            ref &= df[k].between(a, b).to_numpy()  # reference: pandas.Series.between
+        np.testing.assert_array_equal(got, ref)
+        np.testing.assert_array_equal(got, MaskEvaluator(cols, len(df)).update(normalise(ranges, cols)))

@@ -3,7 +3,8 @@
 //        --outfile=build/jstest/raster.test.mjs && node --test build/jstest/raster.test.mjs
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { Accumulator, gainForOpacity, toImageData } from '../raster';
+import { gainForOpacity, toImageData } from '../raster';
+import { Accumulator } from './probe';
 
 // ---------------------------------------------------------------------------------------------
 // helpers

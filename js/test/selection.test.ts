@@ -4,6 +4,9 @@ import { CODE_MAX, CODE_MISSING, decodeTable, unpackMask, type RawTable } from "
 import { fromTrait, previewMask, selKey, tidy, toTrait, type AxisSel } from "../selection";
 import { AxisScale, formatValue, niceTicks, timeTicks } from "../scales";
 
+/** Selections keyed by axis name are records without a prototype (axis names are data). */
+const rec = <T>(o: Record<string, T>): Record<string, T> => Object.assign(Object.create(null), o);
+
 const sel = (spans: [number, number][] = [], bands: number[] = [], lane = false): AxisSel => ({ spans, bands, lane });
 
 function tableOf(values: number[], lo: number, hi: number) {
@@ -34,11 +37,11 @@ test("category bands are picked by code", () => {
   const s = fromTrait(t, { c: ["b", null] });
   assert.deepEqual(s.c, sel([], [1], true));
   assert.deepEqual(Array.from(previewMask(t, s).mask), [0, 1, 0, 1, 1]);
-  assert.deepEqual(toTrait(t, s, {}), { c: ["b", null] });
+  assert.deepEqual(toTrait(t, s, {}), rec({ c: ["b", null] }));
 });
 
 test("tidy merges overlapping spans and drops empty axes; keys ignore axis order", () => {
-  assert.deepEqual(tidy({ a: sel([[5, 6], [1, 3], [2, 4]]), b: sel() }), { a: sel([[1, 4], [5, 6]]) });
+  assert.deepEqual(tidy({ a: sel([[5, 6], [1, 3], [2, 4]]), b: sel() }), rec({ a: sel([[1, 4], [5, 6]]) }));
   assert.equal(selKey({ a: sel([[1, 2]]), b: sel([[3, 4]]) }), selKey({ b: sel([[3, 4]]), a: sel([[1, 2]]) }));
 });
 
@@ -50,9 +53,10 @@ test("datetime ends travel as ISO strings; untouched axes keep the kernel's exac
   const prev = { d: [["2024-03-01T00:00:00.000000001", null]] as [string, null][] };
   const s = fromTrait(t, prev);
   assert.equal(s.d.spans[0][0], Date.UTC(2024, 2, 1) * 1e6); // naive text is wall-clock UTC
-  assert.deepEqual(toTrait(t, s, prev), prev);
+  assert.deepEqual(toTrait(t, s, prev), rec(prev));
   s.d.spans[0] = [Date.UTC(2024, 5, 1) * 1e6, Infinity];
-  assert.deepEqual(toTrait(t, s, prev), { d: [["2024-06-01T00:00:00.000", null]] });
+  // the kernel's normal form (reference: pandas.Timestamp("2024-06-01").isoformat())
+  assert.deepEqual(toTrait(t, s, prev), rec({ d: [["2024-06-01T00:00:00", null]] }));
 });
 
 test("unpackMask reads numpy's little bit order", () => {
@@ -88,7 +92,20 @@ test("category bands stack bottom to top with heights growing with counts", () =
 test("integer axes round range ends inward to whole values", () => {
   const codes = new Uint16Array([0, CODE_MAX]);
   const t = decodeTable({ n: 2, columns: [{ name: "y", kind: "integer", lo: 2008, hi: 2025, missing: 0, codes: new DataView(codes.buffer) }] });
-  assert.deepEqual(toTrait(t, { y: sel([[2010.4, 2013.6]]) }, {}), { y: [[2011, 2013]] });
+  assert.deepEqual(toTrait(t, { y: sel([[2010.4, 2013.6]]) }, {}), rec({ y: [[2011, 2013]] }));
   // no whole value inside: the range is kept as drawn (it selects nothing)
-  assert.deepEqual(toTrait(t, { y: sel([[2010.2, 2010.8]]) }, {}), { y: [[2010.2, 2010.8]] });
+  assert.deepEqual(toTrait(t, { y: sel([[2010.2, 2010.8]]) }, {}), rec({ y: [[2010.2, 2010.8]] }));
+});
+
+test("a range the kernel set keeps its text when another range is added on its axis", () => {
+  // the axis holds -inf values: an end dragged onto the bottom takes them in, an end the kernel set does not
+  const codes = new Uint16Array([0, 0, CODE_MAX]);
+  const t = decodeTable({ n: 3, columns: [{ name: "x", kind: "number", lo: 0, hi: 10, missing: 0, inf: [1, 0], codes: new DataView(codes.buffer) }] });
+  const prev = { x: [[0, 5]] as [number, number][] };
+  const s = fromTrait(t, prev);
+  s.x.spans.push([7, 8]);
+  assert.deepEqual(toTrait(t, s, prev), rec({ x: [[0, 5], [7, 8]] }));
+  // a new range dragged onto the bottom end is open there
+  s.x.spans = [[0, 2]];
+  assert.deepEqual(toTrait(t, s, prev), rec({ x: [[null, 2]] }));
 });

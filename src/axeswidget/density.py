@@ -44,7 +44,7 @@ from typing import Any, Protocol
 
 import numpy as np
 
-from .encode import CODE_MAX, CODE_MISSING
+from .wire import CODE_MAX, CODE_MISSING, DENSITY_BINS
 
 __all__ = ["MAX_BINS", "MAX_PAIR_BINS", "TableSummary", "bin_codes", "pair_counts", "neighbour_counts"]
 
@@ -166,7 +166,7 @@ def _count(left: np.ndarray, right: np.ndarray, bins: int) -> np.ndarray:
     return np.bincount(index, minlength=side * side).reshape(side, side).astype(np.int64, copy=False)
 
 
-def pair_counts(codes_a: np.ndarray, codes_b: np.ndarray, bins: int = 128, mask=None) -> np.ndarray:
+def pair_counts(codes_a: np.ndarray, codes_b: np.ndarray, bins: int = DENSITY_BINS, mask=None) -> np.ndarray:
     """Rows per (bin on axis a, bin on axis b): a ``(bins + 1, bins + 1)`` int64 matrix.
 
     Entry ``[i, j]`` counts the rows whose code on ``a`` falls in bin ``i`` and whose code on ``b``
@@ -190,7 +190,7 @@ def pair_counts(codes_a: np.ndarray, codes_b: np.ndarray, bins: int = 128, mask=
 def neighbour_counts(
     columns: Sequence[np.ndarray] | Mapping[Any, np.ndarray],
     order: Sequence[Any] | None = None,
-    bins: int = 128,
+    bins: int = DENSITY_BINS,
     mask=None,
 ) -> list[np.ndarray]:
     """One :func:`pair_counts` matrix per neighbouring pair of axes in ``order``, left to right.

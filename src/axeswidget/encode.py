@@ -33,8 +33,9 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-CODE_MAX = 65534
-CODE_MISSING = 65535
+# the wire codes and the category band limit (rarer labels share one band) come from the contract
+from .wire import CATEGORY_BAND_LIMIT, CODE_MAX, CODE_MISSING
+
 #: integer columns with at most this many distinct values are drawn as discrete axes
 INTEGER_DISCRETE_LIMIT = 40
 #: whole-number float columns with at most this many distinct values are drawn as discrete axes
@@ -47,8 +48,6 @@ ID_NAME = re.compile(
     r"(?:^|[^A-Za-z0-9])(?i:id|ids|uuid|guid|key|index|idx|no)$"  # "id", "user_id", "row index", "Nr. no"
     r"|[a-z0-9](?:Id|ID|Key|Index|UUID|No)$"  # camelCase: "PassengerId", "orderNo"
 )
-#: category axes draw at most this many bands; rarer labels share one band ("other labels")
-CATEGORY_BAND_LIMIT = 60
 #: object columns with at most this many distinct labels are categories; more are skipped
 CATEGORY_LIMIT = 100_000
 

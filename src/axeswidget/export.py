@@ -18,10 +18,11 @@ import threading
 import weakref
 from pathlib import Path
 
+from .wire import PNG_MAX_SCALE as MAX_SCALE
+from .wire import PNG_MESSAGE
+
 _STATIC = Path(__file__).parent / "static"
-PNG_MESSAGE = "axw:png"  # the message type js/snapshot.ts answers
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
-MAX_SCALE = 4.0  # js/snapshot.ts PNG_MAX_SCALE
 #: state keys that describe the Jupyter plumbing, not the chart; left out of a standalone page
 _PLUMBING = {"layout", "tabbable", "tooltip", "views"}
 

@@ -378,19 +378,39 @@ def _integer_hit(col: Column, lo, hi) -> np.ndarray:
     """Rows of an integer column within [lo, hi], compared in the column's own integer type."""
     info = np.iinfo(col.exact.dtype)
     exact = col.exact
-    hit = ~col.missing
+    hit = None
     if lo is not None:
         lo = math.ceil(lo)  # exact for floats and ints alike
         if lo > info.max:
             return np.zeros(len(exact), dtype=bool)
         if lo > info.min:
-            hit = hit & (exact >= exact.dtype.type(lo))
+            hit = exact >= exact.dtype.type(lo)
     if hi is not None:
         hi = math.floor(hi)
         if hi < info.min:
             return np.zeros(len(exact), dtype=bool)
         if hi < info.max:
-            hit = hit & (exact <= exact.dtype.type(hi))
+            upper = exact <= exact.dtype.type(hi)
+            hit = upper if hit is None else np.logical_and(hit, upper, out=hit)
+    present = ~col.missing
+    return present if hit is None else np.logical_and(hit, present, out=hit)
+
+
+def _range_hit(col: Column, lo, hi) -> np.ndarray:
+    """Rows within one range [lo, hi] (None = open end) on a number, date or duration axis."""
+    if col.exact is not None:
+        return _integer_hit(col, lo, hi)
+    v = col.values
+    if lo is None and hi is None:
+        return ~col.missing
+    if lo is None:
+        hit = v <= hi
+    else:
+        hit = v >= lo
+        if hi is not None:
+            np.logical_and(hit, v <= hi, out=hit)
+    if col.kind in ("datetime", "timedelta") and lo is None:
+        np.logical_and(hit, ~col.missing, out=hit)  # NaT is stored as the smallest int64
     return hit
 
 
@@ -403,27 +423,14 @@ def axis_mask(col: Column, items: list) -> np.ndarray:
         for item in items:
             lut[0 if item is None else index[item] + 1] = True
         return lut[col.label_codes + 1]
+    if len(items) == 1 and items[0] is not None:  # the common case: one range, no extra pass
+        return _range_hit(col, _exact_end(items[0][0], col), _exact_end(items[0][1], col))
     mask = np.zeros(n, dtype=bool)
-    present = None
     for item in items:
         if item is None:
             mask |= col.missing
-            continue
-        lo, hi = _exact_end(item[0], col), _exact_end(item[1], col)
-        if col.exact is not None:
-            mask |= _integer_hit(col, lo, hi)
-            continue
-        v = col.values
-        if present is None:
-            present = ~col.missing
-        hit = present.copy() if lo is None and hi is None else None
-        if lo is not None:
-            hit = v >= lo
-        if hi is not None:
-            hit = (v <= hi) if hit is None else (hit & (v <= hi))
-        if col.kind in ("datetime", "timedelta"):
-            hit &= present  # NaT is stored as the smallest int64
-        mask |= hit
+        else:
+            mask |= _range_hit(col, _exact_end(item[0], col), _exact_end(item[1], col))
     return mask
 
 
@@ -471,19 +478,40 @@ class MaskEvaluator:
             for axis, items in ranges.items():
                 if self.ranges.get(axis) != items or axis not in self._parts:
                     self._parts[axis] = axis_mask(self.columns[axis], items)
+        changed = [a for a in ranges if self.ranges.get(a) != ranges[a]]
         self.ranges = {k: list(v) for k, v in ranges.items()}
-        parts = list(self._parts.values())
-        if not parts:
-            mask = np.ones(self.n, dtype=bool)
-        elif len(parts) == 1:
-            mask = parts[0].copy()
-        else:
-            mask = np.logical_and(parts[0], parts[1])
-            for part in parts[2:]:
-                mask &= part
+        mask = self._combine(changed)
         mask.flags.writeable = False
         self.mask = mask
         self.evaluated = True
+        return mask
+
+    def _combine(self, changed: list[str]) -> np.ndarray:
+        """AND of the per-axis parts. While one axis is dragged, the AND of the others is kept, so
+        each update costs one AND instead of one per brushed axis."""
+        parts = self._parts
+        if not parts:
+            self._rest = None
+            return np.ones(self.n, dtype=bool)
+        if len(parts) == 1:
+            self._rest = None
+            return next(iter(parts.values())).copy()
+        rest = getattr(self, "_rest", None)
+        if len(changed) == 1:
+            axis = changed[0]
+            others = tuple(sorted(a for a in parts if a != axis))
+            if rest is None or rest[0] != axis or rest[1] != others:
+                it = iter(parts[a] for a in others)
+                acc = next(it).copy()
+                for part in it:
+                    acc &= part
+                rest = self._rest = (axis, others, acc)
+            return np.logical_and(rest[2], parts[axis])
+        self._rest = None
+        it = iter(parts.values())
+        mask = np.logical_and(next(it), next(it))
+        for part in it:
+            mask &= part
         return mask
 
 

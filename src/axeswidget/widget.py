@@ -17,7 +17,7 @@ import numpy as np
 import pandas as pd
 import traitlets as t
 
-from . import contrast, export, measures, ordering
+from . import contrast, export, measures, ordering, wire
 from .carryover import carry_over
 from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
 from .selection import MaskEvaluator, SelectionError, normalise, pack, round_page_ranges, to_query
@@ -69,6 +69,7 @@ class AxesWidget(anywidget.AnyWidget):
     """
 
     _esm = _STATIC / "widget.js"
+    _css = _STATIC / "widget.css"
 
     table = t.Dict().tag(sync=True)
     order = t.List(t.Unicode()).tag(sync=True, echo_update=False)
@@ -327,7 +328,7 @@ class AxesWidget(anywidget.AnyWidget):
                 if changed:
                     mask = self._evaluator.update(ranges)
                     self.mask_bits = pack(mask)
-                    self.count = int(mask.sum())
+                    self.count = int(np.count_nonzero(mask))
                 self.answered_seq = self.edit_seq
                 if page and not self.dragging:
                     # a final edit from the page: callbacks first, then the answer goes out (on leaving
@@ -619,18 +620,7 @@ def _callback_error_text(callback, err: BaseException) -> str:
 #: traits whose changes from Python wait for a page message in progress (and vice versa)
 _LOCKED = frozenset({"ranges", "data"})
 #: view options that can be given as keyword arguments and are carried over by ``resume=``
-_OPTIONS = (
-    "color_by",
-    "opacity",
-    "view_mode",
-    "curves",
-    "bundle_by",
-    "bundle_strength",
-    "histograms",
-    "orientation",
-    "log_axes",
-    "height",
-)
+_OPTIONS = wire.OPTIONS
 #: the traits a data swap or ``resume=`` carries over besides the options
 _VIEW = ("order", "ranges", "flipped", "saved", "pinned")
 HEIGHT_MIN, HEIGHT_MAX = 120, 4000

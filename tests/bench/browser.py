@@ -1,22 +1,31 @@
 """Browser figures for `make bench`: the built widget in headless Chromium, with a stand-in model.
 
-The page (``tests/bench/page.html``) holds the real built ``src/axeswidget/static/widget.js`` and a
-stand-in anywidget model (as in ``tests/browser/harness.py``); the column buffers arrive as binary
-files, as Jupyter delivers them. Every figure is a ratio against a baseline measured in the same run
-and the same page:
+Driver: Playwright's sync API driving Chromium at tests.conftest.CHROMIUM (sizes up to 10^6 rows; the
+column buffers reach the page as binary files it fetches, so no large message crosses the driver).
 
-* draw -- a full redraw of the lines layer vs a bare canvas loop stroking the same number of segments
-  with the canvas path API (random y, same canvas size);
-* load, drag and density at the large size -- page open until the first full draw, the longest frame
-  while a range is dragged with the mouse (vs the longest frame of the idle page), and the density
-  view's full draw (vs the same bare canvas loop);
+The page (``tests/bench/page.html``) holds the real built ``src/axeswidget/static/widget.js`` (its
+default export, initialize/render) and a stand-in anywidget model (as in ``tests/browser/harness.py``),
+and a bench-only bundle of baselines built here from ``js/bench/baselines.ts`` (it imports only
+``js/raster.ts`` and ``js/linespass.ts``). Every figure is a ratio against a baseline measured in the
+same run and the same page, on the same codes, geometry and pixel buffer size:
+
+* lines -- a full redraw of the lines layer (Web Workers draw it above ~4*10^5 cells) vs the bare
+  one-core accumulation loop over the same segments; printed with the per-core ratio
+  (widget time x workers / bare time) and, as a diagnostic, the widget's row pass and rasteriser on
+  one core without the worker pipeline;
+* density -- the page's density pass (full redraw in the density view) vs a bare bincount-like loop
+  over the same codes (bin lookup, one increment per row and pair), and vs the bare density view (that
+  loop, then the counted cells drawn with the bare accumulation step);
+* load -- render() until the first full draw, vs the same-work baseline of the view it drew (density:
+  the bare density view; lines: the bare accumulation loop), never the density view vs the lines loop;
+* drag (largest size) -- the longest frame while a range is dragged with the mouse vs the idle page;
 * round trip -- a dragged range until the kernel-side mask is updated vs an echo of a trivial trait
   through the same path (page -> ``set_state`` -> ``get_state`` -> page).
 
 The page hooks used (they belong to the widget): ``.axw-root`` ``dataset.drawn`` (full draws of the lines
-layer so far), ``dataset.drawMs`` (wall time of the last one), ``root.__axw.redraw()`` (a Promise of
-the milliseconds a full redraw took), ``data-layout`` and ``data-state``, and the ``view_mode`` trait.
-A figure whose hook is missing is reported as "hook missing" instead of failing.
+layer so far), ``dataset.drawnBy``, ``dataset.mode``, ``root.__axw.redraw()`` (a Promise of the
+milliseconds a full redraw took), ``data-layout`` and ``data-state``, and the ``view_mode`` trait. The
+page counts the Web Workers the widget starts. A figure whose hook is missing is reported as such.
 
 These are CPU figures: headless Chromium with ``--disable-gpu`` renders canvases in software.
 """
@@ -26,6 +35,7 @@ from __future__ import annotations
 import json
 import os
 import shutil
+import subprocess
 import time
 from pathlib import Path
 
@@ -37,10 +47,13 @@ import axeswidget as aw
 from tests.conftest import CHROME_ARGS, CHROMIUM
 
 HERE = Path(__file__).parent
+ROOT = HERE.parents[1]
 STATIC = Path(aw.__file__).parent / "static"
+BASELINES = ROOT / "build" / "bench" / "baselines.js"
 NOTE = "CPU figures: headless Chromium, --disable-gpu, canvases rendered in software"
-#: how long the first full draw of the large table may take before the bench falls back to a smaller one
-LARGE_LOAD_TIMEOUT_S = 120.0
+DRIVER = f"Playwright sync API, Chromium at {CHROMIUM}"
+#: how long the first full draw may take before the size is reported as not drawn
+FIRST_DRAW_TIMEOUT_S = 120.0
 
 
 def unavailable() -> str | None:
@@ -53,6 +66,26 @@ def unavailable() -> str | None:
         import playwright.sync_api  # noqa: F401
     except ImportError:
         return "browser figures skipped: the playwright package is not installed"
+    return build_baselines()
+
+
+def build_baselines() -> str | None:
+    """Bundle js/bench/baselines.ts into build/bench/baselines.js (bench only); why not, or None."""
+    esbuild = ROOT / "node_modules" / ".bin" / "esbuild"
+    if not esbuild.exists():
+        return "browser figures skipped: node_modules/.bin/esbuild is missing (npm install)"
+    cmd = [
+        str(esbuild),
+        str(ROOT / "js" / "bench" / "baselines.ts"),
+        "--bundle",
+        "--format=esm",
+        "--target=es2022",
+        f"--outfile={BASELINES}",
+        "--log-level=error",
+    ]
+    done = subprocess.run(cmd, cwd=ROOT, capture_output=True, text=True)
+    if done.returncode != 0:
+        return f"browser figures skipped: the baselines bundle did not build: {done.stderr.strip()[:400]}"
     return None
 
 
@@ -74,6 +107,12 @@ def write_page(folder: Path, widget) -> None:
     folder.mkdir(parents=True, exist_ok=True)
     shutil.copy(STATIC / "widget.js", folder / "widget.js")
     shutil.copy(HERE / "page.html", folder / "index.html")
+    shutil.copy(BASELINES, folder / "baselines.js")
+    # the codes in drawing order, column after column, for the baselines (not part of the widget's load)
+    order = list(widget.order) or list(widget.axes)
+    with open(folder / "codes.bin", "wb") as f:
+        for axis in order:
+            f.write(np.ascontiguousarray(widget.column(axis).codes, dtype=np.uint16).tobytes())
     clean, paths, buffers = _remove_buffers(widget.get_state())
     files = []
     for k, buf in enumerate(buffers):
@@ -104,9 +143,6 @@ class Page:
 
     def has_api(self) -> bool:
         return bool(self.js("() => !!(document.querySelector('.axw-root') || {}).__axw"))
-
-    def has_drawn_hook(self) -> bool:
-        return self.js("() => document.querySelector('.axw-root')?.dataset.drawn !== undefined")
 
     def wait_first_draw(self, timeout_s: float) -> bool:
         """Wait until ``dataset.drawn >= 1``; False when the hook is missing or time ran out."""
@@ -143,35 +179,58 @@ class Page:
             best = ms if best is None else min(best, ms)
         return best
 
-    def draw_ms_hook(self) -> float | None:
-        v = self.js("() => document.querySelector('.axw-root')?.dataset.drawMs")
-        return None if v is None else float(v)
-
     def geometry(self) -> dict:
-        """Lines canvas size in device pixels, device pixel ratio, axis x positions and plot band."""
+        """Lines canvas size in device pixels, device pixel ratio, axis x positions, plot band, lane."""
         return self.js(
             """() => { const c = document.querySelector('canvas.axw-lines');
                  const lay = JSON.parse(document.querySelector('.axw-root').dataset.layout);
                  return { width: c.width, height: c.height, dpr: c.width / c.clientWidth,
-                          xs: lay.axes.map(a => a.x), top: lay.top, bottom: lay.bottom }; }"""
+                          xs: lay.axes.map(a => a.x), top: lay.top, bottom: lay.bottom,
+                          laneY: lay.laneY, flipped: lay.flipped }; }"""
         )
 
-    def bare_ms(self, rows: int, repeat: int = 3) -> float:
-        """Best of ``repeat`` bare canvas loops over the same segments as the widget draws."""
-        g = self.geometry()
-        arg = {
-            "rows": rows,
-            "xs": g["xs"],
-            "width": g["width"],
-            "height": g["height"],
-            "dpr": g["dpr"],
-            "top": g["top"],
-            "bottom": g["bottom"],
-        }
-        return min(float(self.js("(a) => window.__bench.bareLines(a)", arg)) for _ in range(repeat))
+    def load_codes(self, rows: int, cols: int) -> None:
+        """Fetch codes.bin into the page for the baselines (outside every timing)."""
+        self.js(
+            "async (a) => { window.__codes ="
+            " await window.__baselines.loadCodes('codes.bin', a.rows, a.cols); }",
+            {"rows": rows, "cols": cols},
+        )
+
+    def baseline(self, name: str, repeat: int, geometry: dict | None = None) -> dict:
+        """Best of ``repeat`` runs of one baseline of baselines.js (by its total milliseconds)."""
+        best = None
+        for _ in range(repeat):
+            r = self.js(f"(g) => window.__baselines.{name}(window.__codes, g ?? undefined)", geometry)
+            if best is None or r["totalMs"] < best["totalMs"]:
+                best = r
+        return best
+
+    def workers(self) -> int:
+        """Web Workers the widget started so far (the page wraps the Worker constructor)."""
+        return int(self.js("() => window.__workers"))
+
+    def drawn_by(self) -> str | None:
+        return self.js("() => document.querySelector('.axw-root')?.dataset.drawnBy ?? null")
+
+    def set_view(self, mode: str) -> None:
+        """Set view_mode in the kernel and send it to the page, as Jupyter would."""
+        self.widget.view_mode = mode
+        self.shown.pull_from_kernel(["view_mode"])
 
     def close(self):
         self.page.close()
+
+
+def _best(old: dict | None, new: dict) -> dict:
+    """The faster of two baseline runs (by total milliseconds)."""
+    return new if old is None or new["totalMs"] < old["totalMs"] else old
+
+
+def _least(values: list) -> float | None:
+    """Smallest of some timings; None when a hook was missing."""
+    values = [v for v in values if v is not None]
+    return min(values) if values else None
 
 
 def _ratio(a, b):
@@ -181,43 +240,6 @@ def _ratio(a, b):
 # ---------------------------------------------------------------------------------------------------------
 # Figures
 # ---------------------------------------------------------------------------------------------------------
-
-
-def bench_draw(browser, server, rows: int, cols: int) -> dict:
-    """Full redraw of the lines layer vs the bare canvas loop, same page, same canvas size."""
-    w = aw.AxesWidget(frame(rows, cols))
-    if w.has_trait("view_mode"):
-        w.view_mode = "lines"  # the figure is about the lines layer, whatever "auto" would pick
-    p = Page(browser, server, w, f"draw-{rows}-{cols}")
-    try:
-        out = {"rows": rows, "cols": cols, "target": 0.3}
-        p.wait_first_draw(120.0)
-        widget_ms = p.redraw_ms()
-        out["bare_ms"] = p.bare_ms(rows)
-        out["widget_ms"] = widget_ms
-        out["ratio"] = _ratio(widget_ms, out["bare_ms"])
-        out["draw_ms_hook"] = p.draw_ms_hook()
-        if widget_ms is None:
-            out["missing"] = ["root.__axw.redraw()"]
-        out["page_errors"] = p.errors
-        return out
-    finally:
-        p.close()
-
-
-def _open_large(browser, server, rows: int, cols: int) -> tuple[Page | None, dict]:
-    """Open the large table and wait for its first full draw."""
-    w = aw.AxesWidget(frame(rows, cols))
-    info = {"rows": rows, "cols": cols}
-    t0 = time.perf_counter()
-    p = Page(browser, server, w, f"large-{rows}-{cols}")
-    drew = p.wait_first_draw(LARGE_LOAD_TIMEOUT_S)
-    info["wall_s"] = time.perf_counter() - t0
-    info["times_ms"] = p.times()
-    info["drew"] = drew
-    info["hook"] = p.has_drawn_hook()
-    info["mode"] = p.js("() => document.querySelector('.axw-root')?.dataset.mode ?? null")
-    return p, info
 
 
 def _drag(p: Page, axis: str, v0: float, v1: float, steps: int = 12) -> dict:
@@ -247,63 +269,99 @@ def _idle(p: Page, seconds: float) -> dict:
     return p.js("() => window.__frames.stop()")
 
 
-def bench_large(browser, server, sizes: list[tuple[int, int]]) -> dict:
-    """Load, dragging and density at the first size of ``sizes`` that draws in time (then the next)."""
-    out: dict = {"tried": []}
-    p = None
-    for rows, cols in sizes:
-        p, info = _open_large(browser, server, rows, cols)
-        out["tried"].append(info)
-        if info["drew"] or not info["hook"] and not p.has_api():
-            break
-        p.close()
-        p = None
-    if p is None:
-        out["error"] = "no size drew within the time limit"
-        return out
+def bench_drags(p: Page, rows: int) -> dict:
+    """Longest frame while dragging a range (median of three drags) vs the longest frame of the idle page."""
+    idle = _idle(p, 1.5)
+    drags = []
+    for axis, v0, v1 in (("c00", -1.0, 1.5), ("c02", 2.0, -0.5), ("c04", -2.0, 0.5)):
+        drags.append(_drag(p, axis, v0, v1))
+        p.shown.round_trip()  # the kernel answers between drags, as it would in Jupyter (not timed)
+    # undo the selection so the figures after this one draw every row
+    p.widget.ranges = {}
+    p.shown.pull_from_kernel()
+    longest = sorted(d["max"] for d in drags if d["max"] is not None)
+    out = {"idle_frames": idle, "drag_frames": drags}
+    # the median over three drags of each drag's longest frame (a maximum is noisy on a shared machine)
+    out["drag_longest_ms"] = longest[len(longest) // 2] if longest else None
+    out["drag_worst_ms"] = longest[-1] if longest else None
+    out["drag_ratio"] = _ratio(out["drag_longest_ms"], idle["max"])
+    if any(d["bands"] == 0 or d["page_count"] >= rows for d in drags):
+        out["drag_warning"] = "a drag made no selection; the drag figure does not apply"
+    return out
+
+
+def bench_size(browser, server, rows: int, cols: int, drag: bool = False) -> dict:
+    """Load, lines, density (and dragging) at one size, each against its same-work baseline."""
+    w = aw.AxesWidget(frame(rows, cols))
+    if not w.has_trait("view_mode"):
+        raise RuntimeError("the widget has no view_mode trait; the lines and density figures need it")
+    big = rows * cols > 2 * 10**6
+    # best of several runs: the least disturbed one on a shared machine
+    repeat = 2 if big else (3 if rows * cols > 10**6 else 5)
+    t0 = time.perf_counter()
+    p = Page(browser, server, w, f"size-{rows}-{cols}")
+    out: dict = {"rows": rows, "cols": cols, "missing": []}
     try:
-        info = out["tried"][-1]
-        out.update(rows=info["rows"], cols=info["cols"])
-        t = info["times_ms"]
-        out["load_ms"] = t.get("drawn") if info["drew"] else None
-        out["data_ms"] = t.get("data")
-        out["render_ms"] = t.get("rendered")
-        missing = []
-        if out["load_ms"] is None:
-            missing.append(".axw-root dataset.drawn")
-        out["bare_ms"] = p.bare_ms(out["rows"], repeat=1 if out["rows"] > 2 * 10**5 else 3)
+        out["drew"] = p.wait_first_draw(FIRST_DRAW_TIMEOUT_S)
+        out["open_wall_s"] = time.perf_counter() - t0
+        t = p.times()
+        out["times_ms"] = t
+        out["auto_mode"] = p.js("() => document.querySelector('.axw-root')?.dataset.mode ?? null")
+        out["load_drawn_by"] = p.drawn_by()
         # the widget's own part of the load: from render() to the first full draw
-        if out["load_ms"] is not None:
-            out["load_ratio"] = _ratio(out["load_ms"] - t["renderStart"], out["bare_ms"])
-        idle = _idle(p, 1.5)
-        drags = []
-        for axis, v0, v1 in (("c00", -1.0, 1.5), ("c02", 2.0, -0.5), ("c04", -2.0, 0.5)):
-            drags.append(_drag(p, axis, v0, v1))
-            p.shown.round_trip()  # the kernel answers between drags, as it would in Jupyter (not timed)
-        longest = sorted(d["max"] for d in drags if d["max"] is not None)
-        out["idle_frames"], out["drag_frames"] = idle, drags
-        out["mode"] = info.get("mode")
-        # the median over three drags of each drag's longest frame (a maximum is noisy on a shared machine)
-        out["drag_longest_ms"] = longest[len(longest) // 2] if longest else None
-        out["drag_worst_ms"] = longest[-1] if longest else None
-        out["drag_ratio"] = _ratio(out["drag_longest_ms"], idle["max"])
-        if any(d["bands"] == 0 or d["page_count"] >= out["rows"] for d in drags):
-            out["drag_warning"] = "a drag made no selection; the drag figure does not apply"
-        w = p.widget
-        if w.has_trait("view_mode"):
-            w.view_mode = "lines"
-            p.shown.pull_from_kernel(["view_mode"])
-            out["lines_ms"] = p.redraw_ms(repeat=1)
-            w.view_mode = "density"
-            p.shown.pull_from_kernel(["view_mode"])
-            out["density_ms"] = p.redraw_ms(repeat=3)
-            out["density_ratio"] = _ratio(out["density_ms"], out["bare_ms"])
-            if out["density_ms"] is None:
-                missing.append("root.__axw.redraw()")
-        else:
-            out["density_ms"] = None
-            missing.append("view_mode trait")
-        out["missing"] = missing
+        out["load_ms"] = t["drawn"] - t["renderStart"] if out["drew"] and "drawn" in t else None
+        if out["load_ms"] is None:
+            out["missing"].append(".axw-root dataset.drawn")
+        if drag:
+            out["drag"] = bench_drags(p, rows)
+        g = p.geometry()
+        if g["flipped"]:
+            raise RuntimeError(f"the baselines assume unflipped axes, the page flipped {g['flipped']}")
+        p.load_codes(rows, cols)
+        # each widget figure and its baselines take turns, so a change in the machine's load hits both
+        p.set_view("lines")
+        bare = raster = None
+        lines_ms = []
+        for k in range(repeat):
+            bare = _best(bare, p.baseline("bareLines", 1, g))
+            if k == 0 or not big:
+                raster = _best(raster, p.baseline("rasteriserOneCore", 1, g))
+            lines_ms.append(p.redraw_ms(1))
+        out["lines_ms"] = _least(lines_ms)
+        out["lines_drawn_by"] = p.drawn_by()
+        out["workers"] = p.workers() if out["lines_drawn_by"] == "workers" else 1
+        p.set_view("density")
+        bincount = bare_density = None
+        density_ms = []
+        for _ in range(repeat):
+            bincount = _best(bincount, p.baseline("bareBincount", 1))
+            bare_density = _best(bare_density, p.baseline("bareDensity", 1, g))
+            density_ms.append(p.redraw_ms(1))
+        out["density_ms"] = _least(density_ms)
+        if bincount["counted"] != rows * (cols - 1):
+            raise RuntimeError(f"the bincount baseline counted {bincount['counted']} pairs")
+        out["bare_lines_ms"] = bare["totalMs"]
+        out["bare_lines_accumulate_ms"] = bare["accumulateMs"]
+        out["bare_lines_steps"] = bare["steps"]
+        out["rasteriser_one_core_ms"] = raster["totalMs"]
+        out["bare_bincount_ms"] = bincount["totalMs"]
+        out["bare_density_ms"] = bare_density["totalMs"]
+        out["bare_density_cells"] = bare_density["cells"]
+        if out["lines_ms"] is None:
+            out["missing"].append("root.__axw.redraw()")
+        out["lines_ratio"] = _ratio(out["lines_ms"], out["bare_lines_ms"])
+        out["lines_per_core"] = _ratio(
+            None if out["lines_ms"] is None else out["lines_ms"] * out["workers"], out["bare_lines_ms"]
+        )
+        out["rasteriser_ratio"] = _ratio(out["rasteriser_one_core_ms"], out["bare_lines_ms"])
+        out["density_ratio"] = _ratio(out["density_ms"], out["bare_bincount_ms"])
+        out["density_view_ratio"] = _ratio(out["density_ms"], out["bare_density_ms"])
+        # load is compared with the same-work baseline of the view it drew (density: bare bincount + the
+        # counted cells drawn; lines: the bare accumulation loop), never the density view with the lines loop
+        density_view = out["auto_mode"] == "density"
+        load_base = out["bare_density_ms"] if density_view else out["bare_lines_ms"]
+        out["load_baseline"] = "bare density view" if density_view else "bare lines loop"
+        out["load_ratio"] = _ratio(out["load_ms"], load_base)
         out["page_errors"] = p.errors
         return out
     finally:
@@ -415,8 +473,8 @@ def run(quick: bool = False) -> dict:
 
     from tests.browser.harness import StaticServer
 
-    print(f"\nbrowser figures ({NOTE})")
-    results: dict = {"note": NOTE}
+    print(f"\nbrowser figures ({NOTE}; driver: {DRIVER})")
+    results: dict = {"note": NOTE, "driver": DRIVER}
     server = StaticServer()
     try:
         with sync_playwright() as pw:
@@ -439,54 +497,84 @@ def _guard(results: dict, key: str, fn):
     return results[key]
 
 
-def _run_all(browser, server, quick: bool, results: dict) -> None:
-    d = _guard(results, "draw", lambda: bench_draw(browser, server, 10**5, 10))
-    if "error" not in d:
-        print("draw: full redraw of the lines layer vs a bare canvas loop stroking the same segments in the")
-        print(
-            "      same page (one beginPath, moveTo/lineTo per row, stroke every 2000 rows; target <= 0.3x)"
-        )
-        print(f"{'rows':>9} {'cols':>4} {'widget':>14} {'bare loop':>10} {'ratio':>14}")
-        print(
-            f"{d['rows']:>9} {d['cols']:>4} {_fmt(d['widget_ms']):>14} {_fmt(d['bare_ms']):>10} "
-            f"{_fmt(d['ratio'], '.2f', 'x'):>14}"
-        )
-        if d.get("missing"):
-            print("  hook missing: " + ", ".join(d["missing"]))
+def _x(v, spec: str = ".2f") -> str:
+    return "-" if v is None else format(v, spec) + "x"
 
-    sizes = [(10**5, 20)] if quick else [(10**6, 20), (2 * 10**5, 20)]
-    g = _guard(results, "large", lambda: bench_large(browser, server, sizes))
-    if "error" not in g:
-        for info in g["tried"][:-1]:
+
+def _ms(v, spec: str = ".1f") -> str:
+    return "-" if v is None else format(v, spec)
+
+
+def _run_all(browser, server, quick: bool, results: dict) -> None:
+    sizes = [(rows, cols) for rows in (10**4, 10**5, 10**6) for cols in (10, 20)]
+    if quick:
+        sizes = [s for s in sizes if s[0] < 10**6]
+    largest = sizes[-1]
+    results["sizes"] = []
+    for rows, cols in sizes:
+        box: dict = {}
+        drag = (rows, cols) == largest
+        key = f"{rows} x {cols}"
+        r = _guard(box, key, lambda r=rows, c=cols, d=drag: bench_size(browser, server, r, c, drag=d))
+        r.setdefault("rows", rows)
+        r.setdefault("cols", cols)
+        results["sizes"].append(r)
+    ok = [r for r in results["sizes"] if "error" not in r]
+
+    print("lines: full redraw of the lines layer vs a bare accumulation loop over the same segments (same")
+    print("       rows, axes, geometry and pixel buffer; one core; + one tone-map and putImageData).")
+    print("       per core = widget ms x workers / bare ms (target <= 1.0x); 'raster 1 core': the widget's")
+    print("       row pass + rasteriser (linespass + raster.ts) in one call on the page, no workers")
+    print(
+        f"{'rows':>9} {'cols':>4} {'widget ms':>10} {'drawn by':>12} {'bare ms':>9} {'ratio':>7}"
+        f" {'per core':>9} {'raster 1 core ms':>17} {'/ bare':>7}"
+    )
+    for r in ok:
+        by = f"{r['workers']} workers" if r["lines_drawn_by"] == "workers" else (r["lines_drawn_by"] or "-")
+        print(
+            f"{r['rows']:>9} {r['cols']:>4} {_ms(r['lines_ms']):>10} {by:>12} {_ms(r['bare_lines_ms']):>9}"
+            f" {_x(r['lines_ratio']):>7} {_x(r['lines_per_core']):>9} {_ms(r['rasteriser_one_core_ms']):>17}"
+            f" {_x(r['rasteriser_ratio']):>7}"
+        )
+    print("\ndensity: the page's density pass (full redraw in the density view: count the binned pairs,")
+    print("         then draw each non-empty cell once) vs a bare bincount-like loop over the same codes")
+    print("         (bin lookup, one increment per row and pair; target <= 1.0x), and vs the bare density")
+    print("         view (that loop + the same cells drawn with the bare accumulation step + tone map);")
+    print("         all on the page's thread")
+    print(
+        f"{'rows':>9} {'cols':>4} {'widget ms':>10} {'bincount ms':>12} {'ratio':>7}"
+        f" {'bare view ms':>13} {'ratio':>7} {'cells':>7}"
+    )
+    for r in ok:
+        print(
+            f"{r['rows']:>9} {r['cols']:>4} {_ms(r['density_ms']):>10} {_ms(r['bare_bincount_ms']):>12}"
+            f" {_x(r['density_ratio']):>7} {_ms(r['bare_density_ms']):>13} {_x(r['density_view_ratio']):>7}"
+            f" {r['bare_density_cells']:>7}"
+        )
+    print("\nload: render() -> first full draw in view_mode auto, vs the same-work baseline of the view")
+    print(f"{'rows':>9} {'cols':>4} {'view':>8} {'load ms':>9} {'baseline':>18} {'ratio':>7}")
+    for r in ok:
+        print(
+            f"{r['rows']:>9} {r['cols']:>4} {r['auto_mode'] or '-':>8} {_ms(r['load_ms']):>9}"
+            f" {r['load_baseline']:>18} {_x(r['load_ratio']):>7}"
+        )
+    for r in ok:
+        if r.get("missing"):
+            print(f"  {r['rows']} x {r['cols']}: hook missing: " + ", ".join(r["missing"]))
+        d = r.get("drag")
+        if d:
+            idle, drags = d["idle_frames"], d["drag_frames"]
+            frames = sum(x["frames"] for x in drags)
+            longest, idle_ms = _fmt(d["drag_longest_ms"], missing="-"), _fmt(idle["max"], missing="no frames")
             print(
-                f"large: {info['rows']:,} x {info['cols']} did not finish its first draw within "
-                f"{LARGE_LOAD_TIMEOUT_S:.0f} s on this machine; fell back to {g['rows']:,} x {g['cols']}"
+                f"\ndrag ({r['rows']:,} x {r['cols']}, view {r['auto_mode']}): longest frame, median of 3"
+                f" drags {longest} vs idle page {idle_ms}:"
+                f" {_fmt(d['drag_ratio'], '.1f', 'x', '-')} (worst {_fmt(d['drag_worst_ms'], missing='-')};"
+                f" {frames} frames; longest long task {max(x['longtaskMax'] for x in drags):.0f} ms)"
             )
-        idle, drags = g["idle_frames"], g["drag_frames"]
-        print(f"large table: {g['rows']:,} rows x {g['cols']} axes, view_mode auto drew: {g.get('mode')}")
-        print(f"  baseline: bare canvas loop over the same segments  {_fmt(g['bare_ms'])}")
-        print(
-            f"  load, page open -> first full draw                {_fmt(g['load_ms'])}"
-            f"  (data in page {_fmt(g['data_ms'])}, render() returned {_fmt(g['render_ms'])})"
-        )
-        print(f"  load, render() -> first full draw vs bare loop    {_fmt(g.get('load_ratio'), '.2f', 'x')}")
-        idle_ms, drag_ms = _fmt(idle["max"], missing="no frames"), _fmt(g["drag_longest_ms"], missing="-")
-        frames = sum(d["frames"] for d in drags)
-        print(
-            f"  drag, longest frame (median of 3 drags)           {drag_ms}"
-            f"  vs idle page {idle_ms}: {_fmt(g['drag_ratio'], '.1f', 'x', '-')}"
-            f"  (worst {_fmt(g['drag_worst_ms'], missing='-')}; {frames} frames;"
-            f" longest long task {max(d['longtaskMax'] for d in drags):.0f} ms)"
-        )
-        print(
-            f"  density view, full draw                           {_fmt(g.get('density_ms'))}"
-            f"  vs bare loop {_fmt(g.get('density_ratio'), '.3f', 'x')}"
-            f"  (lines view {_fmt(g.get('lines_ms'))})"
-        )
-        if g.get("drag_warning"):
-            print("  " + g["drag_warning"])
-        if g["missing"]:
-            print("  hook missing: " + ", ".join(g["missing"]))
+            if d.get("drag_warning"):
+                print("  " + d["drag_warning"])
+
     t = _guard(results, "round_trip", lambda: bench_round_trip(browser, server, 10**5, 10))
     if "error" not in t:
         print(
@@ -496,8 +584,8 @@ def _run_all(browser, server, quick: bool, results: dict) -> None:
         print(
             f"  range released -> kernel answer in page  {_fmt(t['range_to_page_ms'])} {t['ratio_page']:.1f}x"
         )
-    errs = {
-        k: v.get("page_errors") for k, v in results.items() if isinstance(v, dict) and v.get("page_errors")
-    }
+    errs = {f"{r['rows']}x{r['cols']}": r.get("page_errors") for r in ok if r.get("page_errors")}
+    if isinstance(t, dict) and t.get("page_errors"):
+        errs["round_trip"] = t["page_errors"]
     if errs:
         print(f"  page errors: {errs}")

@@ -68,7 +68,8 @@ class Shown:
 
     def sent(self) -> list[dict]:
         """Messages the page sent since the last call (and forget them)."""
-        return self.page.evaluate("() => window.__sent.splice(0)")
+        # as JSON text, as a host sends it: keys such as "__proto__" survive (a structured copy drops them)
+        return json.loads(self.page.evaluate("() => JSON.stringify(window.__sent.splice(0))"))
 
     def push_to_kernel(self) -> int:
         """Apply everything the page sent to the Python widget, in order; return how many messages."""
@@ -80,7 +81,7 @@ class Shown:
     def pull_from_kernel(self, names=("ranges", "order", "count", "mask_bits", "answered_seq")):
         """Send the kernel's current values of some traits to the page (as Jupyter would after a change)."""
         state = self.widget.get_state(list(names))
-        self.page.evaluate("(m) => window.__apply(m)", wire_message(state))
+        self.page.evaluate("(m) => window.__apply(JSON.parse(m))", json.dumps(wire_message(state)))
         self.settle()
 
     def round_trip(self):
@@ -137,6 +138,7 @@ class Shown:
 def show(browser, server: StaticServer, widget, width: int = 940, height: int = 520, cls=None) -> Shown:
     """Open a fresh page showing the widget through the stand-in model (as a ``cls``, default Shown)."""
     shutil.copy(STATIC / "widget.js", server.dir / "widget.js")
+    shutil.copy(STATIC / "widget.css", server.dir / "widget.css")  # the widget's _css, as a host applies it
     shutil.copy(HERE / "standin.html", server.dir / "index.html")
     (server.dir / "state.json").write_text(json.dumps(wire_message(widget.get_state())))
     page = browser.new_page(viewport={"width": width, "height": height})

@@ -1,0 +1,49 @@
+// The widget's traits as the page sees them: one interface mirroring AxesWidget's traits (widget.py),
+// and the slice of the anywidget model API the page uses (a stand-in can provide it in tests).
+
+import type { AnyModel } from "@anywidget/types";
+import type { RawTable } from "./data";
+import type { TraitRanges } from "./selection";
+
+export interface Traits {
+  /** kernel → page: the axes and their wire codes */
+  table: RawTable;
+  /** both: axis names in drawing order */
+  order: string[];
+  /** both: the selection in the kernel's form */
+  ranges: TraitRanges;
+  /** both: numeric axes on a log scale */
+  log_axes: string[];
+  /** both: axes drawn upside down */
+  flipped: string[];
+  /** kernel → page: exact number of selected rows */
+  count: number;
+  /** kernel → page: exact mask, packed little bit order */
+  mask_bits: DataView | null;
+  /** page → kernel: bumped with every ranges edit the page sends */
+  edit_seq: number;
+  /** page → kernel: the edit is an intermediate one */
+  dragging: boolean;
+  /** both: named selections */
+  saved: Record<string, TraitRanges>;
+  /** kernel → page: the edit_seq that count/mask_bits answer */
+  answered_seq: number;
+  height: number;
+  /** page → kernel: ids of live views */
+  views: string[];
+  color_by: string;
+  opacity: number;
+  view_mode: "auto" | "lines" | "density";
+  curves: boolean;
+  bundle_by: string;
+  bundle_strength: number;
+  histograms: boolean;
+  /** both: row pinned on the page, -1 for none */
+  pinned: number;
+  orientation: "vertical" | "horizontal";
+  /** set only in an exported page: there is no kernel behind it */
+  _standalone?: boolean;
+}
+
+/** What the page uses of the anywidget model. */
+export type WidgetModel = Pick<AnyModel<Traits>, "get" | "set" | "on" | "off" | "save_changes"> & Partial<Pick<AnyModel<Traits>, "send">>;
