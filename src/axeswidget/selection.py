@@ -277,7 +277,7 @@ def round_page_ranges(ranges: Ranges, previous: Ranges, columns: Mapping[str, Co
             rlo = round_end(col, lo, "lo") if isinstance(lo, float) else lo
             rhi = round_end(col, hi, "hi") if isinstance(hi, float) else hi
             if rlo is not None and rhi is not None and rlo > rhi:
-                new.append(item)  # an empty range between two data values: keep it as drawn
+                new.append(_round_empty(col, lo, hi))  # a range between two data values: one point
             else:
                 new.append([rlo, rhi])
         if new != items:
@@ -300,6 +300,29 @@ def round_end(col: Column, value: float, side: str):
     """
     if not math.isfinite(value):
         return value
+    out = shortest_decimal(*_end_interval(col, value, side), value)
+    if col.exact is not None and out.is_integer() and abs(out) < 2**53:
+        return int(out)
+    return out
+
+
+def _round_empty(col: Column, lo, hi) -> list:
+    """A range holding no row whose rounded ends would cross: both ends at the shortest decimal where
+    either end may lie, or the ends as drawn when there is none."""
+    if not (isinstance(lo, float) and isinstance(hi, float) and math.isfinite(lo) and math.isfinite(hi)):
+        return [lo, hi]
+    a, b = _end_interval(col, lo, "lo"), _end_interval(col, hi, "hi")
+    lower, lower_open = max((a[0], a[2]), (b[0], b[2]), key=lambda p: (p[0], p[1]))
+    upper, upper_open = min((a[1], a[3]), (b[1], b[3]), key=lambda p: (p[0], not p[1]))
+    probe = hi if lower <= hi <= upper else lo if lower <= lo <= upper else None
+    if probe is None or (lower_open and probe <= lower) or (upper_open and probe >= upper):
+        return [lo, hi]
+    x = shortest_decimal(lower, upper, lower_open, upper_open, probe)
+    return [x, x]
+
+
+def _end_interval(col: Column, value: float, side: str) -> tuple[float, float, bool, bool]:
+    """Where a range end may lie and still pick the same rows: (lower, upper, lower open, upper open)."""
     v = col.values
     with np.errstate(invalid="ignore"):
         if side == "hi":
@@ -315,10 +338,7 @@ def round_end(col: Column, value: float, side: str):
         lower, lower_open = w_lo, False
     if w_hi < upper:
         upper, upper_open = w_hi, False
-    out = shortest_decimal(lower, upper, lower_open, upper_open, value)
-    if col.exact is not None and out.is_integer() and abs(out) < 2**53:
-        return int(out)
-    return out
+    return lower, upper, lower_open, upper_open
 
 
 def _page_window(col: Column, value: float) -> tuple[float, float]:
