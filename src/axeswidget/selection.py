@@ -264,7 +264,7 @@ def round_page_ranges(ranges: Ranges, previous: Ranges, columns: Mapping[str, Co
     out: Ranges = {}
     for axis, items in ranges.items():
         col = columns[axis]
-        if col.kind not in ("number", "integer"):
+        if col.kind not in ("number", "integer") or col.values is None:  # no exact values here: as given
             out[axis] = items
             continue
         old = previous.get(axis, [])

@@ -213,7 +213,10 @@ class AxesWidget(anywidget.AnyWidget):
         try:
             clean = normalise(proposal["value"], self._columns)
             if self._page_edit:  # ends dragged on the page: shortest decimals that pick the same rows
-                clean = round_page_ranges(clean, self._evaluator.ranges, self._columns)
+                try:
+                    clean = round_page_ranges(clean, self._evaluator.ranges, self._columns)
+                except (ArithmeticError, TypeError, ValueError) as err:  # never refuse an edit over looks
+                    _log.debug("axeswidget: range ends kept as sent (%s)", err)
             self._evaluator.prepare(clean)  # evaluated before the trait changes: a failure changes nothing
         except SelectionError as err:
             raise t.TraitError(str(err)) from None
