@@ -238,8 +238,10 @@ def quantise(values: np.ndarray, lo: float, hi: float, log: bool = False, missin
     if log:
         v, lo, hi = np.log(v), math.log(lo), math.log(hi)
     half_span = hi * 0.5 - lo * 0.5
-    if half_span > 0:
+    if half_span > 0 and math.isfinite(CODE_MAX / half_span):
         codes[present] = np.rint((v * 0.5 - lo * 0.5) * (CODE_MAX / half_span)).astype(np.uint16)
+    elif half_span > 0:  # a span of subnormal numbers: halving would lose them, and the span cannot overflow
+        codes[present] = np.rint((v - lo) / (hi - lo) * CODE_MAX).astype(np.uint16)
     else:
         codes[present] = 0
     return codes
