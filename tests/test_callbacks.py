@@ -196,3 +196,25 @@ def test_callback_error_is_a_synced_trait(fleet):
     w = aw.AxesWidget(fleet, axes=["flow_m3h"])
     assert w.trait_metadata("callback_error", "sync") is True
     assert w.get_state()["callback_error"] == ""
+
+
+def test_any_trait_set_from_a_cell_waits_for_the_page_message(fleet):
+    """traitlets keeps its hold and validation state per widget: a cell setting an option while a page
+    message is being applied waits for it instead of sharing that state across threads."""
+    w = aw.AxesWidget(fleet, axes=["flow_m3h", "head_m", "site"])
+    started, release = threading.Event(), threading.Event()
+    w.on_change(lambda wid: (started.set(), release.wait(10)))
+    page = threading.Thread(
+        target=w.set_state, args=({"ranges": {"head_m": [[10, 20]]}, "edit_seq": 1, "dragging": False},)
+    )
+    page.start()
+    assert started.wait(10)
+    done = threading.Event()
+    cell = threading.Thread(target=lambda: (setattr(w, "color_by", "site"), done.set()))
+    cell.start()
+    assert not done.wait(0.3)  # blocked behind the page's message
+    release.set()
+    assert done.wait(10)
+    page.join()
+    cell.join()
+    assert w.color_by == "site" and w.answered_seq == 1

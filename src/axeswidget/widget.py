@@ -620,8 +620,9 @@ def _callback_error_text(callback, err: BaseException) -> str:
     return f"callback {name} raised {type(err).__name__}" + (f": {message}" if message else "")
 
 
-#: traits whose changes from Python wait for a page message in progress (and vice versa)
-_LOCKED = frozenset({"ranges", "data"})
+#: what a cell sets that waits for a page message in progress (and vice versa): the data and every
+#: synced trait (traitlets keeps its hold/validation state per widget, not per thread)
+_LOCKED = frozenset(AxesWidget.class_trait_names(sync=True)) | {"data"}
 #: view options that can be given as keyword arguments and are carried over by ``resume=``
 _OPTIONS = wire.OPTIONS
 #: the traits a data swap or ``resume=`` carries over besides the options
