@@ -3,6 +3,9 @@
 A selection is ``{axis name: [item, ...]}``. An item is
 
 * ``[lo, hi]`` — a range on a number, integer, datetime or timedelta axis, both ends inclusive.
+  On an ``integer`` (discrete) axis a single value ``v`` stands for ``[v, v]``: ``{"target": 1}``,
+  ``{"target": [1]}`` and ``{"target": [0, [2, 3]]}`` are accepted (two bare numbers stay the range
+  shorthand ``[lo, hi]``).
   ``None`` as an end leaves that side open (and takes in ``±inf`` values pinned at that end).
   Datetime ends are ISO 8601 strings (timezone offset included for tz-aware axes); timedelta ends
   are seconds;
@@ -20,6 +23,7 @@ mask over the in-memory columns and recomputes only the axes whose items changed
 from __future__ import annotations
 
 import datetime as _dt
+import decimal
 import math
 import unicodedata
 from collections.abc import Mapping
@@ -28,7 +32,7 @@ from numbers import Real
 import numpy as np
 import pandas as pd
 
-from .encode import CATEGORY_BAND_LIMIT, Column
+from .encode import CATEGORY_BAND_LIMIT, CODE_MAX, Column
 
 Ranges = dict[str, list]
 
@@ -61,6 +65,11 @@ def _number(value, axis: str, exact_int: bool = False) -> float | int | None:
     if exact_int and isinstance(value, int | np.integer) and not math.isinf(out):
         return int(value)  # compared exactly with the column's integers (float64 stops at 2**53)
     return out
+
+
+def _is_value(item) -> bool:
+    """A single number (not a bool, not a pair): one value on a discrete axis."""
+    return isinstance(item, Real | np.number) and not isinstance(item, bool | np.bool_ | np.timedelta64)
 
 
 def _short(value) -> str:
@@ -167,6 +176,9 @@ def normalise_items(items, col: Column) -> list:
     axis = col.name
     if items is None:
         return []
+    discrete = col.kind == "integer"
+    if discrete and _is_value(items):
+        items = [items]  # {"target": 1}: one value on a discrete axis
     if isinstance(items, str) or not isinstance(items, list | tuple | np.ndarray):
         raise SelectionError(f"selection on {axis!r}: expected a list of items, got {items!r}")
     items = list(items)
@@ -174,6 +186,8 @@ def normalise_items(items, col: Column) -> list:
     if not categorical and len(items) == 2 and not any(_is_pair(i) for i in items):
         if any(i is not None for i in items):  # [lo, hi] shorthand for one range
             items = [items]
+    if discrete:  # single values on a discrete axis: the range [v, v]
+        items = [[i, i] if _is_value(i) else i for i in items]
     spans, picked, lane = [], set(), False
     for item in items:
         if item is None:
@@ -202,7 +216,8 @@ def normalise_items(items, col: Column) -> list:
             picked.add(label)
         else:
             if not _is_pair(item) or len(item) != 2:
-                raise SelectionError(f"range on {axis!r}: expected a pair [lo, hi], got {item!r}")
+                hint = " (single values are taken on integer axes only)" if _is_value(item) else ""
+                raise SelectionError(f"range on {axis!r}: expected a pair [lo, hi], got {item!r}{hint}")
             lo, hi = _end(item[0], col, "lo"), _end(item[1], col, "hi")
             if lo is not None and hi is not None and _end_key(lo, col) > _end_key(hi, col):
                 raise SelectionError(f"range on {axis!r}: lo {lo!r} is greater than hi {hi!r}")
@@ -237,6 +252,136 @@ def normalise(ranges, columns: Mapping[str, Column]) -> Ranges:
         if clean:
             out[axis] = clean
     return out
+
+
+# -- ends dragged on the page --------------------------------------------------------------------------
+def round_page_ranges(ranges: Ranges, previous: Ranges, columns: Mapping[str, Column]) -> Ranges:
+    """Ranges from the page with each new float end on a number axis replaced by the shortest decimal
+    that selects exactly the same rows (see :func:`round_end`); ranges already in ``previous`` stay.
+
+    The selected rows never change: an axis whose rounded ranges would pick other rows keeps its ends.
+    """
+    out: Ranges = {}
+    for axis, items in ranges.items():
+        col = columns[axis]
+        if col.kind not in ("number", "integer") or col.values is None:  # no exact values here: as given
+            out[axis] = items
+            continue
+        old = previous.get(axis, [])
+        new = []
+        for item in items:
+            if item is None or item in old:
+                new.append(item)
+                continue
+            lo, hi = item
+            rlo = round_end(col, lo, "lo") if isinstance(lo, float) else lo
+            rhi = round_end(col, hi, "hi") if isinstance(hi, float) else hi
+            if rlo is not None and rhi is not None and rlo > rhi:
+                new.append(_round_empty(col, lo, hi))  # a range between two data values: one point
+            else:
+                new.append([rlo, rhi])
+        if new != items:
+            spans = sorted((i for i in new if i is not None), key=lambda s: _end_key(s[0], col))
+            new = spans + [None] * (None in new)
+            if not np.array_equal(axis_mask(col, new), axis_mask(col, items)):
+                new = items
+        out[axis] = new
+    return out
+
+
+def round_end(col: Column, value: float, side: str):
+    """The shortest decimal that can replace a range end on a number axis without changing the rows.
+
+    The end may move anywhere between the nearest data values on either side of it (for ``"hi"``:
+    from the largest value it takes in, inclusive, to the smallest it leaves out, exclusive; mirrored
+    for ``"lo"``) and no further than half a wire-code step (what the page can resolve). Among the
+    decimals with the fewest significant digits there, the one nearest ``value`` is taken. Whole
+    results on integer columns come back as ``int``.
+    """
+    if not math.isfinite(value):
+        return value
+    out = shortest_decimal(*_end_interval(col, value, side), value)
+    if col.exact is not None and out.is_integer() and abs(out) < 2**53:
+        return int(out)
+    return out
+
+
+def _round_empty(col: Column, lo, hi) -> list:
+    """A range holding no row whose rounded ends would cross: both ends at the shortest decimal where
+    either end may lie, or the ends as drawn when there is none."""
+    if not (isinstance(lo, float) and isinstance(hi, float) and math.isfinite(lo) and math.isfinite(hi)):
+        return [lo, hi]
+    a, b = _end_interval(col, lo, "lo"), _end_interval(col, hi, "hi")
+    lower, lower_open = max((a[0], a[2]), (b[0], b[2]), key=lambda p: (p[0], p[1]))
+    upper, upper_open = min((a[1], a[3]), (b[1], b[3]), key=lambda p: (p[0], not p[1]))
+    probe = hi if lower <= hi <= upper else lo if lower <= lo <= upper else None
+    if probe is None or (lower_open and probe <= lower) or (upper_open and probe >= upper):
+        return [lo, hi]
+    x = shortest_decimal(lower, upper, lower_open, upper_open, probe)
+    return [x, x]
+
+
+def _end_interval(col: Column, value: float, side: str) -> tuple[float, float, bool, bool]:
+    """Where a range end may lie and still pick the same rows: (lower, upper, lower open, upper open)."""
+    v = col.values
+    with np.errstate(invalid="ignore"):
+        if side == "hi":
+            lower = float(np.max(v, where=v <= value, initial=-math.inf))  # taken in: closed
+            upper = float(np.min(v, where=v > value, initial=math.inf))  # left out: open
+            lower_open, upper_open = False, True
+        else:
+            lower = float(np.max(v, where=v < value, initial=-math.inf))
+            upper = float(np.min(v, where=v >= value, initial=math.inf))
+            lower_open, upper_open = True, False
+    w_lo, w_hi = _page_window(col, value)
+    if w_lo > lower:
+        lower, lower_open = w_lo, False
+    if w_hi < upper:
+        upper, upper_open = w_hi, False
+    return lower, upper, lower_open, upper_open
+
+
+def _page_window(col: Column, value: float) -> tuple[float, float]:
+    """The values within half a wire-code step of ``value`` (what the page cannot tell apart)."""
+    if col.log and col.lo > 0 and value > 0:
+        half = (math.log(col.hi) - math.log(col.lo)) / CODE_MAX / 2
+        return value * math.exp(-half), value * math.exp(half)
+    half = (col.hi / 2 - col.lo / 2) / CODE_MAX  # half of (hi - lo) / CODE_MAX, without overflow
+    if not math.isfinite(half):
+        return value, value
+    return value - half, value + half
+
+
+def shortest_decimal(lower: float, upper: float, lower_open: bool, upper_open: bool, near: float) -> float:
+    """The float of the decimal with the fewest significant digits inside the interval, nearest ``near``.
+
+    ``near`` must lie inside; it is the answer when nothing shorter does.
+    """
+
+    def inside(x: float) -> bool:
+        return (x > lower if lower_open else x >= lower) and (x < upper if upper_open else x <= upper)
+
+    if inside(0.0):
+        return 0.0
+    if not (math.isfinite(lower) and math.isfinite(upper)):
+        return near
+    top = math.floor(math.log10(max(abs(lower), abs(upper)))) + 1
+    with decimal.localcontext() as ctx:
+        ctx.prec = 80
+        lo_d, hi_d, near_d = decimal.Decimal(lower), decimal.Decimal(upper), decimal.Decimal(near)
+        for e in range(top, top - 25, -1):
+            step = decimal.Decimal(1).scaleb(e)
+            # one more on each side: a decimal just outside can be the float at a closed bound
+            k_lo = (lo_d / step).to_integral_value(rounding=decimal.ROUND_CEILING) - 1
+            k_hi = (hi_d / step).to_integral_value(rounding=decimal.ROUND_FLOOR) + 1
+            if k_hi - k_lo > 12:  # a coarser level would have held one of these; never reached
+                continue
+            ks = [k_lo + i for i in range(int(k_hi - k_lo) + 1)]
+            for k in sorted(ks, key=lambda k: abs(k - near_d / step)):
+                x = float(k.scaleb(e))
+                if inside(x):
+                    return x
+    return near
 
 
 def _exact_end(value, col: Column):

@@ -6,6 +6,8 @@ The traits are the only channel between kernel and front end; DEVELOPERS.md docu
 
 from __future__ import annotations
 
+import logging
+import threading
 import time
 import warnings
 from pathlib import Path
@@ -18,9 +20,10 @@ import traitlets as t
 from . import contrast, export, measures, ordering, wire
 from .carryover import carry_over
 from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
-from .selection import MaskEvaluator, SelectionError, normalise, pack, to_query
+from .selection import MaskEvaluator, SelectionError, normalise, pack, round_page_ranges, to_query
 
 _STATIC = Path(__file__).parent / "static"
+_log = logging.getLogger("axeswidget")
 
 
 def _take_rows(source, frame: pd.DataFrame, mask: np.ndarray):
@@ -90,10 +93,18 @@ class AxesWidget(anywidget.AnyWidget):
     histograms = t.Bool(True).tag(sync=True)
     pinned = t.Int(-1).tag(sync=True)
     orientation = t.Enum(["vertical", "horizontal"], "vertical").tag(sync=True)
+    callback_error = t.Unicode("").tag(sync=True)
 
     def __init__(
         self, data, axes=None, *, ranges=None, height: int = 380, names=None, resume=None, **options
     ):
+        # page messages may arrive on another thread (a kernel subshell) while a cell runs: selection
+        # updates and callbacks hold this lock; `_settled` tells `wait()` when nothing is in flight
+        self._state_lock = threading.RLock()
+        self._settled = threading.Condition(threading.Lock())
+        self._busy = 0
+        self._inside = threading.local()  # depth of page messages / callbacks on this thread
+        self._page_edit = False  # a selection edit from the page is being applied
         super().__init__(height=height)
         self._axes_arg = axes
         self._callbacks: list[list] = []  # [callback, min_interval_while_dragging, last_call_time]
@@ -118,6 +129,47 @@ class AxesWidget(anywidget.AnyWidget):
             setattr(self, key, value)
         if ranges:
             self.ranges = ranges
+
+    def set_state(self, sync_data):
+        """Apply a message from the page, serialised with Python-side selection changes.
+
+        For a final edit the on_change callbacks run before the answer (count, mask_bits,
+        answered_seq) is sent, so a page showing the exact count means its callbacks have finished.
+        """
+        with self._busy_section():
+            with self._state_lock:
+                before = self._page_edit
+                self._page_edit = bool({"ranges", "edit_seq", "dragging"} & set(sync_data))
+                try:
+                    super().set_state(sync_data)
+                finally:
+                    self._page_edit = before
+
+    def __setattr__(self, name, value):
+        if name in _LOCKED and "_state_lock" in self.__dict__:
+            with self._state_lock:
+                super().__setattr__(name, value)
+        else:
+            super().__setattr__(name, value)
+
+    def _busy_section(self):
+        return _Busy(self)
+
+    def wait(self, timeout: float | None = None) -> bool:
+        """Block until no callback is running and every page edit received has been answered.
+
+        Returns True when settled, False when ``timeout`` seconds passed first. Comm messages can be
+        handled while a cell runs (kernel subshells), so a cell that depends on what ``on_change``
+        callbacks computed for the page's latest selection can call ``w.wait()`` first.
+        """
+        if getattr(self._inside, "depth", 0):
+            raise RuntimeError(
+                "wait() called from an on_change callback or a page message would wait for itself"
+            )
+        with self._settled:
+            return self._settled.wait_for(
+                lambda: self._busy == 0 and self.answered_seq >= self.edit_seq, timeout
+            )
 
     def _view(self) -> dict:
         """The state a data swap or ``resume=`` carries over (copies of the trait values)."""
@@ -160,6 +212,11 @@ class AxesWidget(anywidget.AnyWidget):
     def _check_ranges(self, proposal):
         try:
             clean = normalise(proposal["value"], self._columns)
+            if self._page_edit:  # ends dragged on the page: shortest decimals that pick the same rows
+                try:
+                    clean = round_page_ranges(clean, self._evaluator.ranges, self._columns)
+                except (ArithmeticError, TypeError, ValueError) as err:  # never refuse an edit over looks
+                    _log.debug("axeswidget: range ends kept as sent (%s)", err)
             self._evaluator.prepare(clean)  # evaluated before the trait changes: a failure changes nothing
         except SelectionError as err:
             raise t.TraitError(str(err)) from None
@@ -267,14 +324,21 @@ class AxesWidget(anywidget.AnyWidget):
         self._apply(self.ranges)
 
     def _apply(self, ranges):
-        changed = not self._evaluator.evaluated or ranges != self._evaluator.ranges
-        with self.hold_sync():
-            if changed:
-                mask = self._evaluator.update(ranges)
-                self.mask_bits = pack(mask)
-                self.count = int(np.count_nonzero(mask))
-            self.answered_seq = self.edit_seq
-        self._notify(changed)
+        with self._state_lock:
+            changed = not self._evaluator.evaluated or ranges != self._evaluator.ranges
+            page = self._page_edit
+            with self.hold_sync():
+                if changed:
+                    mask = self._evaluator.update(ranges)
+                    self.mask_bits = pack(mask)
+                    self.count = int(np.count_nonzero(mask))
+                self.answered_seq = self.edit_seq
+                if page and not self.dragging:
+                    # a final edit from the page: callbacks first, then the answer goes out (on leaving
+                    # hold_sync), so the page's exact count means the callbacks are done
+                    self._notify(changed, page=True)
+                    return
+            self._notify(changed, page=page)
 
     @t.validate("saved")
     def _check_saved(self, proposal):
@@ -383,19 +447,41 @@ class AxesWidget(anywidget.AnyWidget):
         """Stop calling a callback registered with :meth:`on_change`."""
         self._callbacks = [c for c in self._callbacks if c[0] is not callback]
 
-    def _notify(self, changed: bool) -> None:
+    def _notify(self, changed: bool, page: bool = False) -> None:
+        """Run the due callbacks. From the page an error is caught, shown in ``callback_error`` and
+        logged; from Python code it propagates to the caller."""
         final = not self.dragging
         released = final and self._was_dragging
         self._was_dragging = self.dragging
         if not (changed or released):
             return
         now = time.monotonic()
+        due = []
         for entry in list(self._callbacks):
-            callback, every, last = entry
-            if not final and now - last < every:
+            if not final and now - entry[2] < entry[1]:
                 continue  # throttled while dragging; the release always calls
             entry[2] = now
-            callback(self)
+            due.append(entry[0])
+        if not due:
+            return
+        errors = []
+        with self._busy_section():
+            self._page_edit = False  # what a callback sets is a change from Python
+            try:
+                for callback in due:
+                    if not page:
+                        callback(self)
+                        continue
+                    try:
+                        callback(self)
+                    except Exception as err:
+                        text = _callback_error_text(callback, err)
+                        errors.append(text)
+                        _log.error("axeswidget: %s (the selection stands)", text, exc_info=err)
+            finally:
+                self._page_edit = page
+        more = f" (and {len(errors) - 1} more)" if len(errors) > 1 else ""
+        self.callback_error = errors[0] + more if errors else ""
 
     def to_query(self) -> str:
         """A pandas ``DataFrame.query`` expression that reproduces the selection exactly.
@@ -505,6 +591,38 @@ class AxesWidget(anywidget.AnyWidget):
         return f"AxesWidget({len(self._columns)} axes, {self.count} of {len(self._frame)} rows selected)"
 
 
+class _Busy:
+    """Counts a page message or callback round in flight (for ``wait``), per widget and thread."""
+
+    def __init__(self, widget):
+        self.widget = widget
+
+    def __enter__(self):
+        w = self.widget
+        w._inside.depth = getattr(w._inside, "depth", 0) + 1
+        with w._settled:
+            w._busy += 1
+
+    def __exit__(self, *exc):
+        w = self.widget
+        w._inside.depth -= 1
+        with w._settled:
+            w._busy -= 1
+            w._settled.notify_all()
+
+
+def _callback_error_text(callback, err: BaseException) -> str:
+    """A short one-line description of a callback's error, for the page."""
+    name = getattr(callback, "__qualname__", None) or getattr(callback, "__name__", None) or repr(callback)
+    message = " ".join(str(err).split())
+    if len(message) > 200:
+        message = message[:199] + "…"
+    return f"callback {name} raised {type(err).__name__}" + (f": {message}" if message else "")
+
+
+#: what a cell sets that waits for a page message in progress (and vice versa): the data and every
+#: synced trait (traitlets keeps its hold/validation state per widget, not per thread)
+_LOCKED = frozenset(AxesWidget.class_trait_names(sync=True)) | {"data"}
 #: view options that can be given as keyword arguments and are carried over by ``resume=``
 _OPTIONS = wire.OPTIONS
 #: the traits a data swap or ``resume=`` carries over besides the options
