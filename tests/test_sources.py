@@ -15,7 +15,8 @@ import pytest
 
 from axeswidget import density
 from axeswidget.encode import encode_frame
-from axeswidget.selection import MaskEvaluator, normalise
+from axeswidget.evaluate import MaskEvaluator
+from axeswidget.selection import normalise
 from axeswidget.sources import MemorySource, NotInMemoryError, SourceError, axis_bins, open_source
 from tests.source_reference import ORDER, SELECTION, check_against_pandas, pump_table, reference_mask
 

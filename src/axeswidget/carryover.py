@@ -21,7 +21,8 @@ import numpy as np
 import pandas as pd
 
 from .encode import Column
-from .selection import SelectionError, _end_key, axis_mask, normalise_items
+from .evaluate import axis_mask
+from .selection import SelectionError, _end_key, normalise_items
 
 _LABELS = ("category", "boolean")
 

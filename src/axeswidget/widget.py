@@ -20,7 +20,10 @@ import traitlets as t
 from . import contrast, export, measures, ordering, wire
 from .carryover import carry_over
 from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
-from .selection import MaskEvaluator, SelectionError, normalise, pack, round_page_ranges, to_query
+from .evaluate import MaskEvaluator, pack
+from .pageround import round_page_ranges
+from .query import to_query
+from .selection import SelectionError, normalise
 
 _STATIC = Path(__file__).parent / "static"
 _log = logging.getLogger("axeswidget")

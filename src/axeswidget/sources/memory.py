@@ -15,7 +15,8 @@ import numpy as np
 import pandas as pd
 
 from ..encode import encode_frame, to_frame
-from ..selection import MaskEvaluator, Ranges
+from ..evaluate import MaskEvaluator
+from ..selection import Ranges
 from .base import DataSource, Sample, axis_bins, check_ranges, count_pairs
 from .expressions import selection_expression
 
