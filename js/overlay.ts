@@ -235,7 +235,11 @@ function drawScale(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale,
     ctx.moveTo(x - 4, y);
     ctx.lineTo(x, y);
     ctx.stroke();
-    label(ctx, ticks.labels[t], x - 6, y, theme, layout.horizontal ? undefined : room);
+    // the label at the top end hangs below it, clear of the readouts in the header band
+    const hang = !layout.horizontal && y < layout.top + 6;
+    if (hang) ctx.textBaseline = "top";
+    label(ctx, ticks.labels[t], x - 6, hang ? Math.max(y, layout.top) - 2 : y, theme, layout.horizontal ? undefined : room);
+    if (hang) ctx.textBaseline = "middle";
   });
 }
 
