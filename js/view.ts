@@ -41,6 +41,8 @@ export class View {
   /** the pinned row's values, docked below the chart */
   private dock = element("div", "axw-dock");
   private picker: AxisPicker;
+  /** "axes 1–7 of 31 in view": shown while the chart scrolls sideways */
+  private scrollHint = element("span", "axw-scroll-hint");
   private linesCanvas = element("canvas", "axw-lines");
   private overlayCanvas = element("canvas", "axw-overlay");
   private progress = element("div", "axw-progress");
@@ -92,7 +94,13 @@ export class View {
       },
     });
     this.cleanup.push(() => this.picker.dispose());
-    bar.append(this.status, this.legend, this.picker.button, this.modeButton);
+    bar.append(this.status, this.legend, this.scrollHint, this.picker.button, this.modeButton);
+    const onScroll = () => {
+      this.updateScrollHint();
+      if (this.hover >= 0) this.hoverAt(-1, -1); // the pointer no longer rests on that line
+    };
+    this.scroller.addEventListener("scroll", onScroll, { passive: true });
+    this.cleanup.push(() => this.scroller.removeEventListener("scroll", onScroll));
     this.progress.setAttribute("role", "progressbar");
     this.stage.append(this.linesCanvas, this.overlayCanvas, this.progress, this.tip);
     this.scroller.append(this.stage);
@@ -303,6 +311,7 @@ export class View {
     this.stage.style.height = `${height}px`;
     this.stage.style.width = `${width}px`;
     this.root.dataset.scrolls = String(width > this.scroller.clientWidth + 1);
+    this.updateScrollHint();
     for (const c of [this.linesCanvas, this.overlayCanvas]) {
       c.width = Math.round(width * dpr);
       c.height = Math.round(height * dpr);
@@ -448,6 +457,17 @@ export class View {
     if (row === this.hover) return;
     this.hover = row;
     this.invalidate(false);
+  }
+
+  /** Which axes are in view when the chart is wider than the page (else no hint). */
+  private updateScrollHint() {
+    const x0 = this.scroller.scrollLeft;
+    const x1 = x0 + this.scroller.clientWidth;
+    const slots = this.horizontal ? [] : this.layout().slots;
+    const inView = slots.map((s, i) => (s.x >= x0 && s.x <= x1 ? i : -1)).filter((i) => i >= 0);
+    const all = inView.length === slots.length || inView.length === 0;
+    this.scrollHint.hidden = all;
+    if (!all) this.scrollHint.textContent = `axes ${inView[0] + 1}–${inView[inView.length - 1] + 1} of ${slots.length} in view ⇆`;
   }
 
   /** A header under the pointer: its full name and kind as the canvas's tooltip. */
