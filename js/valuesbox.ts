@@ -8,10 +8,13 @@ import { indexLabel, type Table } from "./data";
 /** Height of one line of the box (CSS px; the stylesheet's 11px × 1.35). */
 const LINE_PX = 15;
 
-/** The box's title: the row's index label, or its position when the kernel sent no index. */
+/**
+ * The box's title: the row's index label (what `df.loc` takes) and its position (what `w.pinned`
+ * holds); the position only when the kernel sent no index.
+ */
 export function rowTitle(table: Table, row: number, pinned: boolean): string {
   const label = indexLabel(table, row);
-  const name = label !== null ? `index ${label}` : `row at position ${row}`;
+  const name = label !== null ? `index ${label} · row ${row}` : `row ${row}`;
   return pinned ? `${name} · pinned` : name;
 }
 
@@ -40,7 +43,7 @@ export function fillBox(box: HTMLElement, title: string, entries: { name: string
     const value = document.createElement("span");
     value.className = "axw-vb-value";
     value.textContent = e.value;
-    line.append(name, value);
+    line.append(name, ": ", value); // reads "name: value" (also as text, e.g. copied or read aloud)
     return line;
   };
   if (perColumn > 0) {

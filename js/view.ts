@@ -169,7 +169,13 @@ export class View {
       commit: (r) => this.sync.edit(r, true),
     });
     this.cleanup.push(detach);
-    const ro = new ResizeObserver(() => this.resize());
+    // only a change of width matters (the docked values box changes the height, not the chart)
+    let seenWidth = -1;
+    const ro = new ResizeObserver(() => {
+      if (this.root.clientWidth === seenWidth) return;
+      seenWidth = this.root.clientWidth;
+      this.resize();
+    });
     ro.observe(this.root);
     this.cleanup.push(() => ro.disconnect());
     this.resize();

@@ -137,7 +137,7 @@ def test_hover_and_pin_find_rows_across_65_axes(show, digits):
     assert w.pinned == h and w.pinned_index == df.index[h]
     dock = s.page.locator(".axw-dock")
     assert dock.is_visible()
-    assert dock.locator(".axw-vb-title").inner_text().startswith(f"index {df.index[h]}")
+    assert dock.locator(".axw-vb-title").inner_text().startswith(f"index {df.index[h]} · row {h} · pinned")
     # the docked box sits below the chart, never over the axes (and outside the canvases a PNG is made of)
     assert dock.bounding_box()["y"] >= s.canvas_box()["y"] + s.canvas_box()["height"] - 0.5
     assert dock.locator(".axw-vb-entry").count() == len(axes)
@@ -163,11 +163,11 @@ def test_values_box_of_31_columns_stays_in_view_with_the_index_label(show, cance
     h = s.layout()["hover"]
     assert h >= 0
     tip = s.page.locator(".axw-tip")
-    assert tip.locator(".axw-vb-title").inner_text() == f"index {df.index[h]}"
+    assert tip.locator(".axw-vb-title").inner_text() == f"index {df.index[h]} · row {h}"
     entries = tip.locator(".axw-vb-entry")
     assert entries.count() == 31
-    names = [e.split("\n")[0].split("\t")[0] for e in entries.all_inner_texts()]
-    assert any("target" in n for n in names)
+    # "name: value" per line; the last column is the target (reference: the row itself, df.iloc[h])
+    assert entries.nth(30).inner_text() == f"target: {df['target'].iloc[h]}"
     # every entry, the last (target) included, is inside the box, and the box inside the visible chart
     tb = tip.bounding_box()
     view = s.page.locator(".axw-scroll").bounding_box()

@@ -80,7 +80,7 @@ def test_31_axes_in_jupyterlab_at_850_px(browser, lab):
                 break
         assert hovered >= 0
         tip = page.locator(".axw-tip").first
-        assert tip.locator(".axw-vb-title").inner_text() == f"index {df.index[hovered]}"
+        assert tip.locator(".axw-vb-title").inner_text() == f"index {df.index[hovered]} · row {hovered}"
         assert tip.locator(".axw-vb-entry").count() == 31
         tb, view = tip.bounding_box(), page.locator(".axw-scroll").first.bounding_box()
         assert view["x"] - 0.5 <= tb["x"] and tb["x"] + tb["width"] <= view["x"] + view["width"] + 0.5
