@@ -73,3 +73,26 @@ export function placeFloating(box: HTMLElement, pointer: { x: number; y: number 
   box.style.left = `${left}px`;
   box.style.top = `${top}px`;
 }
+
+/**
+ * A floating box with more columns than fit: drop the columns that would be cut off and say in the
+ * title how many values are not shown (pinning the row shows them all, docked below the chart).
+ */
+export function trimToFit(box: HTMLElement): number {
+  const cols = box.querySelector(".axw-vb-cols");
+  if (!cols || box.scrollWidth <= box.clientWidth + 1) return 0;
+  const right = box.getBoundingClientRect().right - 6;
+  let dropped = 0;
+  const all = Array.from(cols.children) as HTMLElement[];
+  for (let i = all.length - 1; i >= 1 && all[i].getBoundingClientRect().right > right; i--) {
+    dropped += all[i].childElementCount;
+    all[i].remove();
+  }
+  if (dropped) {
+    const note = document.createElement("span");
+    note.className = "axw-vb-more";
+    note.textContent = `+${dropped} more: click to pin the row and see all`;
+    box.querySelector(".axw-vb-title")?.append(note);
+  }
+  return dropped;
+}

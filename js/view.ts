@@ -17,7 +17,7 @@ import { LinePainter, type Mode, type PaintJob, type PaintResult } from "./paint
 import type { AxisScale } from "./scales";
 import { ensureStyles } from "./style";
 import { KernelSync } from "./sync";
-import { fillBox, linesPerColumn, placeFloating, rowTitle } from "./valuesbox";
+import { fillBox, linesPerColumn, placeFloating, rowTitle, trimToFit } from "./valuesbox";
 import { chartWidth } from "./wide";
 import { DENSITY_ROWS, OPTIONS } from "./wire";
 
@@ -504,7 +504,9 @@ export class View {
       fillBox(this.tip, rowTitle(this.table, this.hover, this.hover === pinned), rowValues(this.table, layout, this.scales(), this.hover), linesPerColumn(size.h - 8));
       const pointer = layout.horizontal ? { x: this.pointer.y, y: this.pointer.x } : this.pointer;
       const x0 = this.scroller.scrollLeft;
-      placeFloating(this.tip, pointer, { x0, x1: x0 + (this.scroller.clientWidth || size.w), h: size.h });
+      const visible = { x0, x1: x0 + (this.scroller.clientWidth || size.w), h: size.h };
+      placeFloating(this.tip, pointer, visible);
+      if (trimToFit(this.tip)) placeFloating(this.tip, pointer, visible);
     } else this.tip.style.display = "none";
     const dockRow = pinned >= 0 && pinned < n ? pinned : -1;
     if (dockRow < 0) this.dock.hidden = true;

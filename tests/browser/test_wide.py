@@ -255,3 +255,33 @@ def test_category_axis_with_many_labels_shows_what_fits_and_the_picked_ones(show
     assert int(s.root().get_attribute("data-count")) == int(df["station"].isin([hidden["label"]]).sum())
     assert hidden["label"] in {b["text"] for b in text_boxes(s)}
     assert not s.errors
+
+
+def test_values_box_of_150_columns_drops_what_does_not_fit_and_says_so(show):
+    rng = np.random.default_rng(8)
+    df = pd.DataFrame({f"measurement_{i:03d}": rng.normal(size=300) for i in range(150)})
+    w = aw.AxesWidget(df)
+    s = show(w, width=WIDTH)
+    narrow(s)
+    lay = s.layout()
+    a, b = lay["axes"][0], lay["axes"][1]
+    box = s.canvas_box()
+    for row in range(40):
+        y = (line_y(s, lay, a, df[a["name"]].iloc[row]) + line_y(s, lay, b, df[b["name"]].iloc[row])) / 2
+        s.page.mouse.move(box["x"] + (a["x"] + b["x"]) / 2, box["y"] + y)
+        s.settle()
+        if s.layout()["hover"] >= 0:
+            break
+    assert s.layout()["hover"] >= 0
+    tip = s.page.locator(".axw-tip")
+    shown = tip.locator(".axw-vb-entry").count()
+    assert 20 <= shown < 150
+    assert f"+{150 - shown} more" in tip.locator(".axw-vb-title").inner_text()
+    # nothing shown is cut off: every column left lies inside the box, the box inside the visible chart
+    tb = tip.bounding_box()
+    view = s.page.locator(".axw-scroll").bounding_box()
+    assert tb["x"] + tb["width"] <= view["x"] + view["width"] + 0.5
+    for col in tip.locator(".axw-vb-col").all():
+        cb = col.bounding_box()
+        assert cb["x"] + cb["width"] <= tb["x"] + tb["width"] + 0.5
+    assert not s.errors
