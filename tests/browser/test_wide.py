@@ -285,3 +285,22 @@ def test_values_box_of_150_columns_drops_what_does_not_fit_and_says_so(show):
         cb = col.bounding_box()
         assert cb["x"] + cb["width"] <= tb["x"] + tb["width"] + 0.5
     assert not s.errors
+
+
+def test_header_hover_names_the_axis_in_full(show, cancer):
+    w = aw.AxesWidget(cancer)
+    s = show(w, width=WIDTH)
+    narrow(s)
+    name = "mean fractal dimension"  # too long for a 64 px header: shortened on the chart
+    drawn = {b["text"] for b in text_boxes(s)}
+    assert name not in drawn and not any(name.split()[1] + " " + name.split()[2] == t for t in drawn)
+    scroll_to(s, s.axis(name)["x"])
+    box = s.canvas_box()
+    s.page.mouse.move(box["x"] + s.axis(name)["x"], box["y"] + 12)
+    s.settle()
+    title = s.page.locator("canvas.axw-overlay").get_attribute("title")
+    assert title.startswith(f"{name} (number)")
+    s.page.mouse.move(box["x"] + s.axis(name)["x"] + 30, box["y"] + 200)  # away from the header
+    s.settle()
+    assert s.page.locator("canvas.axw-overlay").get_attribute("title") == ""
+    assert not s.errors
