@@ -229,6 +229,8 @@ function drawScale(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale,
   ctx.stroke();
   beside(ctx, layout, "before");
   const ticks = sc.ticks();
+  // labels too wide for the room: a size smaller first, then drawn condensed (label's maxWidth)
+  if (!layout.horizontal && ticks.labels.some((l) => ctx.measureText(l).width > room)) ctx.font = `9px ${theme.font}`;
   ticks.values.forEach((v, t) => {
     const y = Math.round(sc.toPixel(v)) + 0.5;
     ctx.beginPath();
