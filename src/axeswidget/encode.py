@@ -547,6 +547,25 @@ def _twice(name: str, names: list[str]) -> str:
     return "the name appears more than once"
 
 
+#: up to this many rows the index labels of a non-range index travel as text (above: positions only)
+INDEX_LABELS_MAX = 200_000
+
+
+def index_spec(index) -> dict | None:
+    """The rows' index labels for the page's values box: a range as start/step, else text labels."""
+    if isinstance(index, pd.RangeIndex):
+        return {"start": int(index.start), "step": int(index.step)}
+    if len(index) > INDEX_LABELS_MAX:
+        return None
+    return {"labels": [str(v) for v in index]}
+
+
 def table_trait(columns: dict[str, Column], n: int) -> dict:
     """The value of the widget's ``table`` trait: row count plus one spec (with its buffer) per axis."""
     return {"n": int(n), "columns": [c.spec() for c in columns.values()]}
+
+
+def with_index(table: dict, index) -> dict:
+    """The ``table`` trait with the rows' index labels added under ``index`` (optional for the page)."""
+    spec = index_spec(index)
+    return table if spec is None else {**table, "index": spec}

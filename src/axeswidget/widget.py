@@ -19,7 +19,16 @@ import traitlets as t
 
 from . import contrast, export, measures, ordering, wire
 from .carryover import carry_over
-from .encode import Column, ColumnError, display_name, encode_frame, quantise, table_trait, to_frame
+from .encode import (
+    Column,
+    ColumnError,
+    display_name,
+    encode_frame,
+    quantise,
+    table_trait,
+    to_frame,
+    with_index,
+)
 from .evaluate import MaskEvaluator, pack
 from .pageround import round_page_ranges
 from .query import to_query
@@ -95,6 +104,7 @@ class AxesWidget(anywidget.AnyWidget):
     bundle_strength = t.Float(0.5).tag(sync=True)
     histograms = t.Bool(True).tag(sync=True)
     pinned = t.Int(-1).tag(sync=True)
+    hidden = t.List(t.Unicode()).tag(sync=True)
     orientation = t.Enum(["vertical", "horizontal"], "vertical").tag(sync=True)
     callback_error = t.Unicode("").tag(sync=True)
 
@@ -196,7 +206,7 @@ class AxesWidget(anywidget.AnyWidget):
             self._frame, self._source, self._columns = frame, source, columns
             self._evaluator = MaskEvaluator(columns, len(frame))
             with self.hold_trait_notifications():
-                self.table = table_trait(columns, len(frame))
+                self.table = with_index(table_trait(columns, len(frame)), frame.index)
                 for key in _VIEW + _OPTIONS:
                     setattr(self, key, view[key])
             self._apply(self.ranges)
@@ -213,6 +223,11 @@ class AxesWidget(anywidget.AnyWidget):
     # -- traits ------------------------------------------------------------------------------------
     @t.validate("ranges")
     def _check_ranges(self, proposal):
+        hidden = [a for a in proposal["value"] if a in self.hidden]
+        if hidden:
+            raise t.TraitError(
+                f"axis {hidden[0]!r} is hidden: show it (remove it from hidden) before selecting on it"
+            )
         try:
             clean = normalise(proposal["value"], self._columns)
             if self._page_edit:  # ends dragged on the page: shortest decimals that pick the same rows
@@ -295,6 +310,20 @@ class AxesWidget(anywidget.AnyWidget):
                 out.append(axis)
         return out
 
+    @t.validate("hidden")
+    def _check_hidden(self, proposal):
+        """Axes hidden from the page: never one with a range (it would filter rows invisibly), never all."""
+        names = self._axis_list(proposal["value"], "hidden")
+        ranged = [a for a in names if a in self.ranges]
+        if ranged:
+            raise t.TraitError(
+                f"cannot hide axis {ranged[0]!r}: it has a range, which would filter rows invisibly; "
+                "clear its range first"
+            )
+        if names and len(names) == len(self._columns):
+            raise t.TraitError("cannot hide every axis; at least one axis stays shown")
+        return names
+
     @t.validate("flipped")
     def _check_flipped(self, proposal):
         return self._axis_list(proposal["value"], "flipped")
@@ -318,7 +347,7 @@ class AxesWidget(anywidget.AnyWidget):
             if col.log != want:
                 col.log = want
                 col.codes = quantise(col.axis_units(), col.lo, col.hi, col.log, col.missing)
-        self.table = table_trait(self._columns, len(self._frame))
+        self.table = with_index(table_trait(self._columns, len(self._frame)), self._frame.index)
 
     @t.observe("ranges", "edit_seq", "dragging")
     def _on_ranges(self, change):
@@ -629,7 +658,7 @@ _LOCKED = frozenset(AxesWidget.class_trait_names(sync=True)) | {"data"}
 #: view options that can be given as keyword arguments and are carried over by ``resume=``
 _OPTIONS = wire.OPTIONS
 #: the traits a data swap or ``resume=`` carries over besides the options
-_VIEW = ("order", "ranges", "flipped", "saved", "pinned")
+_VIEW = ("order", "ranges", "flipped", "saved", "pinned", "hidden")
 HEIGHT_MIN, HEIGHT_MAX = 120, 4000
 
 
