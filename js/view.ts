@@ -3,19 +3,26 @@
 // hover and pin (hover.ts), legend (legend.ts), gestures (brush.ts) and test hooks (hooks.ts).
 
 import { PairCache, rankCorrelation } from "./association";
+import { axisStats, statsText } from "./axisstats";
 import { attachBrush } from "./brush";
 import { colouring, hexToRgb, type Colouring } from "./colour";
 import { decodeTable, isCategorical, rowSpread, type Table } from "./data";
+import { SAVED_GROUPS, savedColouring } from "./groups";
 import { attachHooks, publishCount, publishDrawn, publishLayout } from "./hooks";
 import { drawRows, nearestRow, placeTip, rowText, type LineGeometry } from "./hover";
 import { computeLayout, type Layout } from "./layout";
 import { renderLegend } from "./legend";
+import { KeyboardFocus } from "./keyboard";
+import { drawContrastMarks, drawFocus } from "./marks";
 import type { WidgetModel } from "./model";
 import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, uprightText, type Theme } from "./overlay";
 import { LinePainter, type Mode, type PaintJob, type PaintResult } from "./paint";
 import type { AxisScale } from "./scales";
 import { ensureStyles } from "./style";
 import { KernelSync } from "./sync";
+import { themeKey, watchTheme } from "./theme";
+import { selectionSummary, SelectionTools, valueText } from "./tools";
+import { own, selKey, type Sel } from "./selection";
 import { DENSITY_ROWS, OPTIONS } from "./wire";
 
 /** Okabe–Ito vermillion: the pinned row */
@@ -58,6 +65,14 @@ export class View {
   private waiters: ((ms: number) => void)[] = [];
   /** last pointer position over the chart (logical coordinates), to place the values box */
   private pointer = { x: 0, y: 0 };
+  /** selection tools (clear all, undo/redo, invert), the live summary and the callback error line */
+  private tools: SelectionTools;
+  private keys: KeyboardFocus;
+  /** index of the axis under the pointer (its numbers in the box), or -1 */
+  private hoverAxis = -1;
+  /** the axis edited or hovered last (what "invert" acts on without keyboard focus) */
+  private lastAxis: string | null = null;
+  private themeRead = false;
 
   constructor(
     private model: WidgetModel,
@@ -90,6 +105,16 @@ export class View {
     this.loadTable();
     this.sync = new KernelSync(model, { table: () => this.table, invalidate: (lines) => this.invalidate(lines) });
     this.cleanup.push(() => this.sync.dispose());
+    this.tools = new SelectionTools({
+      table: () => this.table,
+      selection: () => this.sync.sel,
+      commit: (s) => this.commit(s),
+      activeAxis: () => (this.keys?.active && this.keys.axis) || this.lastAxis,
+    });
+    bar.insertBefore(this.tools.box, this.legend);
+    this.root.insertBefore(this.tools.errorLine, this.stage);
+    this.root.append(this.tools.live);
+    this.cleanup.push(watchTheme(() => this.refreshTheme()));
 
     this.listen("change:table", () => {
       this.loadTable();
@@ -103,6 +128,17 @@ export class View {
     });
     this.listen("change:height", () => this.resize());
     this.listen("change:orientation", () => this.resize());
+    this.listen("change:ranges", () => {
+      if (!this.sync.dragging) this.tools.recorded(this.sync.sel); // a selection set from Python
+    });
+    this.listen("change:saved", () => {
+      if (this.model.get("color_by") !== SAVED_GROUPS) return;
+      this.colours = null;
+      this.invalidate(true);
+    });
+    this.listen("change:callback_error", () => this.tools.showError(this.model.get("callback_error") ?? ""));
+    this.tools.showError(this.model.get("callback_error") ?? "");
+    this.listen("change:contrast_axes", () => this.invalidate(false));
     this.listen("change:color_by", () => {
       this.colours = null; // the colour groups depend on the colour column only
       this.invalidate(true);
@@ -125,13 +161,66 @@ export class View {
       hover: (x, y) => this.hoverAt(x, y),
       toLogical: (x, y) => (this.horizontal ? { x: y, y: x } : { x, y }),
       pin: () => this.pinHover(),
-      commit: (r) => this.sync.edit(r, true),
+      commit: (r) => this.commit(r),
+      axisHover: (i) => this.axisHovered(i),
     });
     this.cleanup.push(detach);
+    this.overlayCanvas.setAttribute("role", "application");
+    this.overlayCanvas.setAttribute("aria-roledescription", "parallel coordinates chart");
+    this.overlayCanvas.setAttribute(
+      "aria-label",
+      "parallel coordinates chart: left and right arrows choose an axis, Enter makes a range, up and down arrows move it, Delete clears the axis",
+    );
+    this.keys = new KeyboardFocus(this.overlayCanvas, {
+      layout: () => this.layout(),
+      scales: () => this.scales(),
+      selection: () => this.sync.sel,
+      commit: (s) => this.commit(s),
+      flip: (axis) => this.flip(axis),
+      reorder: (order, final) => this.reorder(order, final),
+      undo: () => this.tools.undo(),
+      redo: () => this.tools.redo(),
+      invert: (axis) => this.tools.invert(axis),
+      focused: (axis) => {
+        if (axis) this.lastAxis = axis;
+        this.tools.refresh();
+        this.invalidate(false);
+      },
+    });
+    this.cleanup.push(() => this.keys.dispose());
     const ro = new ResizeObserver(() => this.resize());
     ro.observe(this.root);
     this.cleanup.push(() => ro.disconnect());
     this.resize();
+  }
+
+  /** A final selection edit made on the page (gesture, key, tool): sent to the kernel and recorded. */
+  private commit(s: Sel) {
+    const before = this.sync.sel;
+    const edited = [...new Set([...Object.keys(before), ...Object.keys(s)])].find(
+      (k) => selKey({ k: own(before, k) ?? { spans: [], bands: [], lane: false } }) !== selKey({ k: own(s, k) ?? { spans: [], bands: [], lane: false } }),
+    );
+    if (edited) this.lastAxis = edited;
+    this.sync.edit(s, true);
+    this.tools.recorded(this.sync.sel);
+  }
+
+  /** The pointer rests on axis i (-1: on none): its selection numbers are shown in the box. */
+  private axisHovered(i: number) {
+    if (i >= 0) this.lastAxis = this.layout().slots[i]?.name ?? this.lastAxis;
+    if (i === this.hoverAxis) return;
+    this.hoverAxis = i;
+    this.tools.refresh();
+    this.invalidate(false);
+  }
+
+  /** Read the host's theme again; redraw everything when it changed (a theme switch, or a first look once shown). */
+  private refreshTheme() {
+    const next = readTheme(this.root);
+    if (themeKey(next) === themeKey(this.theme)) return;
+    this.theme = next;
+    this.colours = null;
+    this.invalidate(true);
   }
 
   private listen(event: `change:${string}`, cb: () => void) {
@@ -268,8 +357,14 @@ export class View {
   private colouringNow(): Colouring {
     if (!this.colours) {
       const by = this.model.get("color_by");
-      this.colours = colouring(by ? this.table.byName.get(by) : undefined, hexToRgb(this.theme.line));
-      renderLegend(this.legend, this.colours, by, this.scales().find((x) => x.axis.name === by));
+      const single = hexToRgb(this.theme.line);
+      if (by === SAVED_GROUPS && !this.table.byName.has(by)) {
+        this.colours = savedColouring(this.table, this.model.get("saved"), single);
+        renderLegend(this.legend, this.colours, "kept groups", undefined);
+      } else {
+        this.colours = colouring(by ? this.table.byName.get(by) : undefined, single);
+        renderLegend(this.legend, this.colours, by, this.scales().find((x) => x.axis.name === by));
+      }
     }
     return this.colours;
   }
@@ -313,11 +408,18 @@ export class View {
     } else ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
     const hist = this.model.get("histograms") === false ? null : this.hist;
     drawOverlay(ctx, layout, this.scales(), this.sync.sel, this.theme, this.readouts(), hist);
+    drawContrastMarks(ctx, layout, this.model.get("contrast_axes") ?? [], this.theme);
+    if (this.keys.active && this.keys.axis && canvas === this.overlayCanvas) drawFocus(ctx, layout, this.scales(), this.keys.axis, this.keys.band, this.theme);
     this.drawHighlight(ctx);
     restore();
   }
 
   private paint() {
+    if (!this.themeRead && this.root.isConnected) {
+      // the host's CSS variables can only be read once the view is in the document
+      this.themeRead = true;
+      this.refreshTheme();
+    }
     const layout = this.layout();
     const dpr = window.devicePixelRatio || 1;
     if (this.dirtyLines) {
@@ -411,9 +513,19 @@ export class View {
     const layout = this.layout();
     drawRows(ctx, this.geometry(), rows, pinned, { fg: this.theme.fg, pinned: PINNED });
     const show = this.hover >= 0 ? this.hover : pinned;
-    const text = show >= 0 && show < n ? rowText(this.table, layout, this.scales(), show, show === pinned) : null;
+    let text = show >= 0 && show < n ? rowText(this.table, layout, this.scales(), show, show === pinned) : null;
+    if (this.hoverAxis >= 0 && this.hoverAxis < layout.slots.length) text = this.axisText(this.hoverAxis);
     const pointer = layout.horizontal ? { x: this.pointer.y, y: this.pointer.x } : this.pointer;
     placeTip(this.tip, text, pointer, this.physicalSize());
+  }
+
+  /** The selection numbers of axis i: selected vs all rows, median or most common label, missing. */
+  private axisText(i: number): string {
+    const sc = this.scales()[i];
+    const rank = (this.model.get("contrast_axes") ?? []).indexOf(sc.axis.name);
+    const marks = rank >= 0 ? [`marked: rank ${rank + 1} of the axes where the selected rows differ most (w.contrast())`] : [];
+    const st = axisStats(sc.axis, this.sync.shown().mask);
+    return statsText(st, sc.axis.kind, (v) => valueText(sc, v), (b) => sc.bandLabel(b), marks);
   }
 
   private updateStatus(layout: Layout) {
@@ -422,6 +534,10 @@ export class View {
     const { count, preview } = this.sync.status();
     this.status.textContent = preview ? `≈ ${fmt(count)} of ${fmt(n)} rows selected (checking…)` : `${fmt(count)} of ${fmt(n)} rows selected`;
     publishCount(this.root, count, n, preview);
+    if (!this.sync.dragging) {
+      const focus = this.keys.active && this.keys.axis ? this.focusPhrase() : "";
+      this.tools.speak(focus + selectionSummary(this.table, this.sync.sel, this.scales(), count, preview));
+    }
     publishLayout(this.root, {
       layout,
       scales: this.scales(),
@@ -430,6 +546,16 @@ export class View {
       hover: this.hover,
       pinned: this.model.get("pinned") ?? -1,
     });
+  }
+
+  /** "Axis 3 of 10: flow_m3h (number). " — said when the keyboard focus is on an axis. */
+  private focusPhrase(): string {
+    const i = this.keys.index();
+    const slots = this.layout().slots;
+    if (i < 0) return "";
+    const sc = this.scales()[i];
+    const band = sc.categorical && this.keys.band >= 0 ? `, band ${sc.bandLabel(this.keys.band)}` : "";
+    return `Axis ${i + 1} of ${slots.length}: ${slots[i].name} (${sc.axis.kind}${sc.flipped ? ", flipped" : ""}${band}). `;
   }
 
   destroy() {
