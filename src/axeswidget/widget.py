@@ -276,19 +276,19 @@ class AxesWidget(anywidget.AnyWidget):
                 self.mask_bits = pack(mask)
                 self.count = int(np.count_nonzero(mask))
             self.answered_seq = self.edit_seq
-            if changed or not self.dragging:
-                self._mark_contrast()
+            if not self.dragging and (changed or self._was_dragging):
+                self._mark_contrast()  # kept as it was while a range is dragged
         self._notify(changed)
 
     def _mark_contrast(self) -> None:
         """Name the 3 unbrushed axes that set a final selection apart most (``contrast``) for the page.
 
-        Skipped (an empty list) while dragging, without a proper selection, and above
+        An empty list without a proper selection (no row or every row selected) and above
         ``CONTRAST_MAX_ROWS`` rows, where it would slow every edit down.
         """
         mask = self._evaluator.mask
         n, picked = len(mask), self.count
-        if self.dragging or not 0 < picked < n or n > CONTRAST_MAX_ROWS:
+        if not 0 < picked < n or n > CONTRAST_MAX_ROWS:
             self.contrast_axes = []
             return
         try:
