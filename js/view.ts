@@ -361,6 +361,10 @@ export class View {
       if (by === SAVED_GROUPS && !this.table.byName.has(by)) {
         this.colours = savedColouring(this.table, this.model.get("saved"), single);
         renderLegend(this.legend, this.colours, "kept groups", undefined);
+        // test hook: rows per colour group (the last one: in no group)
+        const counts = new Array(this.colours.palette.length).fill(0);
+        for (const g of this.colours.group ?? []) counts[g]++;
+        this.root.dataset.colourGroups = JSON.stringify(counts);
       } else {
         this.colours = colouring(by ? this.table.byName.get(by) : undefined, single);
         renderLegend(this.legend, this.colours, by, this.scales().find((x) => x.axis.name === by));
