@@ -188,6 +188,12 @@ export class View {
       },
     });
     this.cleanup.push(() => this.keys.dispose());
+    const leave = () => {
+      this.axisHovered(-1);
+      this.hoverAt(-1, -1);
+    };
+    this.overlayCanvas.addEventListener("pointerleave", leave);
+    this.cleanup.push(() => this.overlayCanvas.removeEventListener("pointerleave", leave));
     const ro = new ResizeObserver(() => this.resize());
     ro.observe(this.root);
     this.cleanup.push(() => ro.disconnect());
