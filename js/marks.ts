@@ -40,7 +40,7 @@ export function drawContrastMarks(ctx: CanvasRenderingContext2D, layout: Layout,
     const x = Math.round(slot.x);
     ctx.globalAlpha = 0.95 - rank * 0.2;
     ctx.fillStyle = theme.bandEdge;
-    if (layout.horizontal) ctx.fillRect(x - 9, 20, 3, 18);
+    if (layout.horizontal) ctx.fillRect(x - 7, layout.top - 10, 14, 3); // just before the axis starts
     else ctx.fillRect(x - 10, 38, 20, 3);
   });
   ctx.restore();
