@@ -44,7 +44,7 @@ export interface BrushHost {
 }
 
 export type Hit =
-  | { kind: "create" | "lane" | "empty" | "header"; axis: string; index: number }
+  | { kind: "create" | "lane" | "empty" | "header" | "past"; axis: string; index: number }
   | { kind: "band"; axis: string; index: number; band: number }
   | { kind: "move" | "lo" | "hi"; axis: string; index: number; span: number };
 
@@ -64,8 +64,10 @@ export function hitTest(host: BrushHost, x: number, y: number): Hit | null {
   // the missing-values box reacts only where it is drawn: on axes with missing values, or a picked lane
   const lane = host.scales()[index].axis.missing > 0 || !!own(host.selection(), name)?.lane;
   if (lane && Math.abs(y - layout.laneY) <= layout.laneHalf + 3) return { kind: "lane", axis: name, index };
-  // without a missing-values box, the space down to where it would be belongs to the axis
-  if (y < layout.top - 10 || y > (lane ? layout.bottom + 8 : layout.laneY + layout.laneHalf + 3)) return null;
+  if (y < layout.top - 10) return null;
+  // without a missing-values box, a drag from where it would be is a range from the axis end ("past";
+  // a click there does nothing)
+  if (y > layout.bottom + 8) return !lane && y <= layout.laneY + layout.laneHalf + 3 ? { kind: "past", axis: name, index } : null;
   const sc = host.scales()[index];
   if (sc.categorical) {
     const band = sc.bandAt(y);
@@ -119,6 +121,7 @@ const CURSOR: Record<string, string> = {
   band: "pointer",
   lane: "pointer",
   empty: "default",
+  past: "crosshair",
   header: "grab",
 };
 
@@ -227,7 +230,7 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
     }
     // a drag that starts a little past an axis end (on the header or the missing-values box) and runs
     // along the axis is a range from that end: never a flip, a reorder or a lane click
-    if ((drag.hit.kind === "header" || drag.hit.kind === "lane" || drag.hit.kind === "empty") && !drag.moved && Math.abs(y - drag.y0) >= CLICK_PX && Math.abs(y - drag.y0) > Math.abs(x - drag.x0)) {
+    if ((drag.hit.kind === "header" || drag.hit.kind === "lane" || drag.hit.kind === "empty" || drag.hit.kind === "past") && !drag.moved && Math.abs(y - drag.y0) >= CLICK_PX && Math.abs(y - drag.y0) > Math.abs(x - drag.x0)) {
       const from = rangeFromEnd(host, drag.hit.axis, drag.y0);
       if (from) {
         drag.hit = from.hit;
@@ -245,7 +248,7 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
       return;
     }
     if (!drag.moved && Math.abs(y - drag.y0) < CLICK_PX) return;
-    if (drag.hit.kind === "lane" || drag.hit.kind === "empty") return;
+    if (drag.hit.kind === "lane" || drag.hit.kind === "empty" || drag.hit.kind === "past") return;
     drag.moved = true;
     host.preview(dragged(y));
   };

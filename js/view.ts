@@ -119,6 +119,7 @@ export class View {
     this.listen("change:table", () => {
       this.loadTable();
       this.sync.tableChanged();
+      this.tools.history.reset(this.sync.sel); // edits of other data cannot be undone onto this one
       this.invalidate(true);
     });
     this.listen("change:order", () => {

@@ -100,10 +100,13 @@ def test_no_missing_values_box_where_there_are_none(show, fleet):
     edge = [s.pixel(x_head + dx, y)[3] for dx in range(-7, 8)]
     assert max(edge) == 0  # nothing drawn below head_m
     assert max(s.pixel(x_sand + dx, y)[3] for dx in range(-7, 8)) > 0  # sand_ppm has its box
-    # a click there is no lane pick (it clears the axis or pins a line, never picks missing rows)
+    # a click there picks no missing rows and leaves the axis's range alone
+    s.drag("head_m", 40, 20)
+    s.round_trip()
+    before = w.ranges
     s.page.mouse.click(x_head, canvas_y(s, lay["laneY"]))
-    s.push_to_kernel()
-    assert "head_m" not in w.ranges
+    s.round_trip()
+    assert w.ranges == before and None not in w.ranges["head_m"]
 
 
 # -- item 7: an empty range on a whole-number axis ------------------------------------------------------
