@@ -61,7 +61,7 @@ def test_contrast_axes_skipped_for_very_large_tables(fleet, monkeypatch):
     w = aw.AxesWidget(fleet, axes=["flow_m3h", "head_m"])
     w.ranges = {"flow_m3h": [[50, 120]]}
     assert 0 < w.count < len(fleet) and w.contrast_axes == []
-    assert CONTRAST_MAX_ROWS == 1_000_000
+    assert CONTRAST_MAX_ROWS == 200_000
 
 
 def test_color_by_saved_groups_is_accepted_and_unknown_names_still_refused(fleet):

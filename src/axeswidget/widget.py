@@ -276,9 +276,11 @@ class AxesWidget(anywidget.AnyWidget):
                 self.mask_bits = pack(mask)
                 self.count = int(np.count_nonzero(mask))
             self.answered_seq = self.edit_seq
-            if not self.dragging and (changed or self._was_dragging):
-                self._mark_contrast()  # kept as it was while a range is dragged
+        # the markers are computed after the answer and the callbacks (kept as they were while dragging)
+        mark = not self.dragging and (changed or self._was_dragging)
         self._notify(changed)
+        if mark:
+            self._mark_contrast()
 
     def _mark_contrast(self) -> None:
         """Name the 3 unbrushed axes that set a final selection apart most (``contrast``) for the page.
@@ -538,8 +540,9 @@ _VIEW = ("order", "ranges", "flipped", "saved", "pinned")
 HEIGHT_MIN, HEIGHT_MAX = 120, 4000
 #: ``color_by`` value that colours rows by the kept selections (``saved``; first group wins, as ``labels()``)
 SAVED_GROUPS = "@saved"
-#: above this many rows the page's contrast markers are not computed (``contrast()`` still works)
-CONTRAST_MAX_ROWS = 1_000_000
+#: above this many rows the page's contrast markers are not computed (``contrast()`` still works): measured
+#: here, ``contrast.compare`` over 13 axes takes ~0.4 s at 10^5 rows and ~5 s at 10^6, after every edit
+CONTRAST_MAX_ROWS = 200_000
 
 
 def _snapshot(data):
