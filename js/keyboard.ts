@@ -172,16 +172,30 @@ export class KeyboardFocus {
       el.addEventListener(type, f);
       this.cleanup.push(() => el.removeEventListener(type, f));
     };
-    on("keydown", (e) => this.key(e));
+    on("keydown", (e) => {
+      if (!this.active && keyCommand(e)) this.show(); // focused by a click: the frame appears with the first key
+      this.key(e);
+    });
     on("focus", () => {
-      this.active = true;
-      if (this.index() < 0) this.focusAt(0);
-      else this.host.focused(this.axis);
+      // the frame shows for keyboard focus only (a click with the mouse focuses the chart too)
+      let visible = true;
+      try {
+        visible = el.matches(":focus-visible");
+      } catch {
+        // a browser without :focus-visible: always show it
+      }
+      if (visible) this.show();
     });
     on("blur", () => {
       this.active = false;
       this.host.focused(null);
     });
+  }
+
+  private show() {
+    this.active = true;
+    if (this.index() < 0) this.focusAt(0);
+    else this.host.focused(this.axis);
   }
 
   /** Index of the focused axis in the drawn order, or -1. */
