@@ -168,6 +168,10 @@ export class KeyboardFocus {
     private host: KeyboardHost,
   ) {
     el.tabIndex = 0;
+    // keys pressed in the chart are the chart's: a host's shortcuts (JupyterLab's command mode: M makes a
+    // Markdown cell, arrows move between cells) must not see them
+    el.setAttribute("data-lm-suppress-shortcuts", "true");
+    el.setAttribute("data-p-suppress-shortcuts", "true");
     const on = <K extends keyof HTMLElementEventMap>(type: K, f: (e: HTMLElementEventMap[K]) => void) => {
       el.addEventListener(type, f);
       this.cleanup.push(() => el.removeEventListener(type, f));
@@ -237,10 +241,12 @@ export class KeyboardFocus {
       const j = i + cmd.by;
       if (j < 0 || j >= slots.length) return; // leave the chart: the browser moves the focus on
       e.preventDefault();
+      e.stopPropagation();
       this.focusAt(j);
       return;
     }
     e.preventDefault();
+    e.stopPropagation();
     switch (cmd.do) {
       case "focus":
         return this.focusAt(i + cmd.by);
