@@ -99,6 +99,15 @@ function stepPx(sc: AxisScale, big: boolean): number {
  * category axis. Returns null when the command changes nothing there.
  */
 export function keyedSel(sel: Sel, cmd: Command, axis: string, sc: AxisScale, band: number): Sel | null {
+  const out = keyedRaw(sel, cmd, axis, sc, band);
+  if (!out || sc.axis.kind !== "integer") return out;
+  // whole-number axes: ends on whole values (a key press moves by whole values, never to "no values")
+  const s = own(out, axis);
+  if (s) s.spans = s.spans.map(([lo, hi]) => [isFinite(lo) ? Math.round(lo) : lo, isFinite(hi) ? Math.round(hi) : hi]);
+  return out;
+}
+
+function keyedRaw(sel: Sel, cmd: Command, axis: string, sc: AxisScale, band: number): Sel | null {
   const s = own(sel, axis);
   const spans = s?.spans ?? [];
   const last = spans.length - 1;

@@ -73,6 +73,8 @@ export class View {
   /** the axis edited or hovered last (what "invert" acts on without keyboard focus) */
   private lastAxis: string | null = null;
   private themeRead = false;
+  /** an exported page has no kernel to update the contrast marks after an edit: they are dropped then */
+  private contrastStale = false;
 
   constructor(
     private model: WidgetModel,
@@ -208,6 +210,7 @@ export class View {
       (k) => selKey({ k: own(before, k) ?? { spans: [], bands: [], lane: false } }) !== selKey({ k: own(s, k) ?? { spans: [], bands: [], lane: false } }),
     );
     if (edited) this.lastAxis = edited;
+    if (this.model.get("_standalone")) this.contrastStale = true;
     this.sync.edit(s, true);
     this.tools.recorded(this.sync.sel);
   }
@@ -419,7 +422,7 @@ export class View {
     } else ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
     const hist = this.model.get("histograms") === false ? null : this.hist;
     drawOverlay(ctx, layout, this.scales(), this.sync.sel, this.theme, this.readouts(), hist);
-    drawContrastMarks(ctx, layout, this.model.get("contrast_axes") ?? [], this.theme);
+    drawContrastMarks(ctx, layout, this.contrastAxes(), this.theme);
     if (this.keys.active && this.keys.axis && canvas === this.overlayCanvas) drawFocus(ctx, layout, this.scales(), this.keys.axis, this.keys.band, this.theme);
     this.drawHighlight(ctx);
     restore();
@@ -530,10 +533,15 @@ export class View {
     placeTip(this.tip, text, pointer, this.physicalSize());
   }
 
+  /** The axes the kernel marked as setting the selection apart (none once an exported page was edited). */
+  private contrastAxes(): string[] {
+    return this.contrastStale ? [] : (this.model.get("contrast_axes") ?? []);
+  }
+
   /** The selection numbers of axis i: selected vs all rows, median or most common label, missing. */
   private axisText(i: number): string {
     const sc = this.scales()[i];
-    const rank = (this.model.get("contrast_axes") ?? []).indexOf(sc.axis.name);
+    const rank = this.contrastAxes().indexOf(sc.axis.name);
     const marks = rank >= 0 ? [`marked: rank ${rank + 1} of the axes where the selected rows differ most (w.contrast())`] : [];
     const st = axisStats(sc.axis, this.sync.shown().mask);
     return statsText(st, sc.axis.kind, (v) => valueText(sc, v), (b) => sc.bandLabel(b), marks);

@@ -181,6 +181,7 @@ test("keyboard ranges: create in the middle fifth, nudge keeps the width, resize
   const ksc = new AxisScale(table.byName.get("k")!, 0, 100);
   const k0 = selOf({ k: sel([[0, 0]]) });
   assert.deepEqual(keyedSel(k0, { do: "nudge", by: 1, big: false }, "k", ksc, -1)!.k.spans[0], [1, 1]);
+  assert.deepEqual(keyedSel(selOf({}), { do: "new-range" }, "k", ksc, -1)!.k.spans[0], [0, 1], "a new range on 0/1 holds whole values");
   // a category axis: Enter toggles the band under the cursor
   const csc = new AxisScale(table.byName.get("c")!, 0, 100);
   assert.deepEqual(keyedSel(selOf({}), { do: "toggle" }, "c", csc, 2)!.c.bands, [2]);
