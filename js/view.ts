@@ -75,6 +75,8 @@ export class View {
   private themeRead = false;
   /** an exported page has no kernel to update the contrast marks after an edit: they are dropped then */
   private contrastStale = false;
+  /** the last axis numbers computed (one pass over the rows), kept while axis and mask stay the same */
+  private statsCache: { axis: object; mask: Uint8Array | null; stats: ReturnType<typeof axisStats> } | null = null;
 
   constructor(
     private model: WidgetModel,
@@ -528,7 +530,7 @@ export class View {
     drawRows(ctx, this.geometry(), rows, pinned, { fg: this.theme.fg, pinned: PINNED });
     const show = this.hover >= 0 ? this.hover : pinned;
     let text = show >= 0 && show < n ? rowText(this.table, layout, this.scales(), show, show === pinned) : null;
-    if (this.hoverAxis >= 0 && this.hoverAxis < layout.slots.length) text = this.axisText(this.hoverAxis);
+    if (this.hoverAxis >= 0 && this.hoverAxis < layout.slots.length) text = this.sync.dragging ? null : this.axisText(this.hoverAxis);
     const pointer = layout.horizontal ? { x: this.pointer.y, y: this.pointer.x } : this.pointer;
     placeTip(this.tip, text, pointer, this.physicalSize());
   }
@@ -543,7 +545,10 @@ export class View {
     const sc = this.scales()[i];
     const rank = this.contrastAxes().indexOf(sc.axis.name);
     const marks = rank >= 0 ? [`marked: rank ${rank + 1} of the axes where the selected rows differ most (w.contrast())`] : [];
-    const st = axisStats(sc.axis, this.sync.shown().mask);
+    const mask = this.sync.shown().mask;
+    const c = this.statsCache;
+    const st = c && c.axis === sc.axis && c.mask === mask ? c.stats : axisStats(sc.axis, mask);
+    this.statsCache = { axis: sc.axis, mask, stats: st };
     return statsText(st, sc.axis.kind, (v) => valueText(sc, v), (b) => sc.bandLabel(b), marks);
   }
 
