@@ -9,7 +9,10 @@
 //   click a band                    -> pick / unpick that category
 //   drag across bands               -> pick every band swept over
 // Every axis:
-//   click the box below the axis    -> pick / unpick the missing-values lane
+//   click the box below the axis    -> pick / unpick the missing-values lane (drawn, and there to click,
+//                                      only on axes with missing values)
+//   drag starting past an axis end  -> a range from that end (on the header or the box below: a drag
+//     (along the axis)                 along the axis is never a flip or a lane click)
 //   click on empty axis space       -> clear everything picked on that axis
 //   drag the header sideways        -> move the axis to another slot
 //   click the header                -> flip the axis (largest values at the bottom)
@@ -38,10 +41,12 @@ export interface BrushHost {
   pin(): void;
   /** page position (relative to the canvas) to the logical layout's coordinates */
   toLogical(x: number, y: number): { x: number; y: number };
+  /** the pointer rests on axis `index` (-1: on no axis), no button pressed */
+  axisHover?(index: number): void;
 }
 
 export type Hit =
-  | { kind: "create" | "lane" | "empty" | "header"; axis: string; index: number }
+  | { kind: "create" | "lane" | "empty" | "header" | "past"; axis: string; index: number }
   | { kind: "band"; axis: string; index: number; band: number }
   | { kind: "move" | "lo" | "hi"; axis: string; index: number; span: number };
 
@@ -58,8 +63,13 @@ export function hitTest(host: BrushHost, x: number, y: number): Hit | null {
   const index = axisAt(layout, x);
   if (index < 0) return null;
   const name = layout.slots[index].name;
-  if (Math.abs(y - layout.laneY) <= layout.laneHalf + 3) return { kind: "lane", axis: name, index };
-  if (y < layout.top - 8 || y > layout.bottom + 8) return null;
+  // the missing-values box reacts only where it is drawn: on axes with missing values, or a picked lane
+  const lane = host.scales()[index].axis.missing > 0 || !!own(host.selection(), name)?.lane;
+  if (lane && Math.abs(y - layout.laneY) <= layout.laneHalf + 3) return { kind: "lane", axis: name, index };
+  if (y < layout.top - 10) return null;
+  // without a missing-values box, a drag from where it would be is a range from the axis end ("past";
+  // a click there does nothing)
+  if (y > layout.bottom + 8) return !lane && y <= layout.laneY + layout.laneHalf + 3 ? { kind: "past", axis: name, index } : null;
   const sc = host.scales()[index];
   if (sc.categorical) {
     const band = sc.bandAt(y);
@@ -113,6 +123,7 @@ const CURSOR: Record<string, string> = {
   band: "pointer",
   lane: "pointer",
   empty: "default",
+  past: "crosshair",
   header: "grab",
 };
 
@@ -166,6 +177,23 @@ export function withoutSpan(start: Sel, axis: string, span: number): Sel {
   return out;
 }
 
+/** The hit a drag starting at y0 beyond an end of `axis` stands for: a new range (or band sweep) from that end. */
+export function rangeFromEnd(host: BrushHost, axis: string, y0: number): { hit: Hit; y0: number } | null {
+  const layout = host.layout();
+  const index = layout.slots.findIndex((s) => s.name === axis);
+  if (index < 0) return null;
+  const sc = host.scales()[index];
+  const y = Math.min(layout.bottom, Math.max(layout.top, y0));
+  if (!sc.categorical) return { hit: { kind: "create", axis, index }, y0: y };
+  if (!sc.bands.length) return null;
+  // the band nearest that end
+  let band = 0;
+  sc.bands.forEach((b, c) => {
+    if (Math.abs((b.y0 + b.y1) / 2 - y) < Math.abs((sc.bands[band].y0 + sc.bands[band].y1) / 2 - y)) band = c;
+  });
+  return { hit: { kind: "band", axis, index, band }, y0: (sc.bands[band].y0 + sc.bands[band].y1) / 2 };
+}
+
 export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
   let drag: { hit: Hit; x0: number; y0: number; start: Sel; moved: boolean; order: string[] } | null = null;
 
@@ -200,7 +228,17 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
       canvas.style.cursor = hit ? CURSOR[hit.kind] : "default";
       host.hover(hit ? -1 : x, hit ? -1 : y);
       host.over?.(hit);
+      host.axisHover?.(hit && hit.kind !== "header" ? hit.index : -1);
       return;
+    }
+    // a drag that starts a little past an axis end (on the header or the missing-values box) and runs
+    // along the axis is a range from that end: never a flip, a reorder or a lane click
+    if ((drag.hit.kind === "header" || drag.hit.kind === "lane" || drag.hit.kind === "empty" || drag.hit.kind === "past") && !drag.moved && Math.abs(y - drag.y0) >= CLICK_PX && Math.abs(y - drag.y0) > Math.abs(x - drag.x0)) {
+      const from = rangeFromEnd(host, drag.hit.axis, drag.y0);
+      if (from) {
+        drag.hit = from.hit;
+        drag.y0 = from.y0;
+      }
     }
     if (drag.hit.kind === "header") {
       if (!drag.moved && Math.abs(x - drag.x0) < CLICK_PX) return;
@@ -213,7 +251,7 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
       return;
     }
     if (!drag.moved && Math.abs(y - drag.y0) < CLICK_PX) return;
-    if (drag.hit.kind === "lane" || drag.hit.kind === "empty") return;
+    if (drag.hit.kind === "lane" || drag.hit.kind === "empty" || drag.hit.kind === "past") return;
     drag.moved = true;
     host.preview(dragged(y));
   };

@@ -43,6 +43,10 @@ export interface Traits {
   /** both: axes hidden from the page (never ones with a range) */
   hidden: string[];
   orientation: "vertical" | "horizontal";
+  /** kernel → page: the error the last Python selection callback raised ("" for none); shown in a dismissible line */
+  callback_error?: string;
+  /** kernel → page: up to 3 axes where the selected rows differ most from the rest (w.contrast()); marked on their headers */
+  contrast_axes?: string[];
   /** set only in an exported page: there is no kernel behind it */
   _standalone?: boolean;
 }

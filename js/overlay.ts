@@ -253,6 +253,16 @@ function drawInfinities(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisS
   if (neg) label(ctx, `−∞ ${neg}`, x + 6, layout.bottom + 8, theme);
 }
 
+/**
+ * A range on a whole-number axis with no whole value inside (e.g. 0.3–0.7), or on an axis whose
+ * distinct values are known with none of them inside.
+ */
+export function holdsNoValue(sc: AxisScale, lo: number, hi: number): boolean {
+  const a = sc.axis;
+  if (a.values && a.values.length) return !a.values.some((v) => v >= lo && v <= hi);
+  return a.kind === "integer" && Math.ceil(lo - 1e-9) > Math.floor(hi + 1e-9);
+}
+
 /** The ranges picked on a numeric axis: a tinted band each, with its end values beside it. */
 function drawRanges(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, s: AxisSel | undefined, x: number, theme: Theme) {
   ctx.globalAlpha = 1;
@@ -267,8 +277,13 @@ function drawRanges(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale
     ctx.strokeRect(x - 8, yTop, 16, Math.max(2, yBot - yTop));
     ctx.fillStyle = theme.fg;
     ctx.font = `600 10px ${theme.font}`;
-    const hiText = hi === Infinity ? "open" : sc.format(hi);
-    const loText = lo === -Infinity ? "open" : sc.format(lo);
+    let hiText = hi === Infinity ? "open" : sc.format(hi);
+    let loText = lo === -Infinity ? "open" : sc.format(lo);
+    if (holdsNoValue(sc, lo, hi)) {
+      // e.g. between 0 and 1 on a 0/1 axis: say so instead of printing two ends that round alike
+      hiText = "no values";
+      loText = "";
+    }
     // end values on the right of the axis, or on the left where the chart ends
     const wide = Math.max(ctx.measureText(hiText).width, ctx.measureText(loText).width);
     const right = layout.horizontal || x + 11 + wide <= layout.width;
@@ -301,6 +316,7 @@ function drawHeader(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale
 function drawLane(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, s: AxisSel | undefined, x: number, theme: Theme) {
   const missing = sc.axis.missing;
   const lanePicked = !!s?.lane;
+  if (!missing && !lanePicked) return; // no missing values: no box (and nothing to click there)
   ctx.globalAlpha = missing || lanePicked ? 0.95 : 0.3;
   if (lanePicked) {
     ctx.fillStyle = theme.band;

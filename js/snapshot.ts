@@ -9,7 +9,8 @@
 
 import { viewHooks } from "./hooks";
 import type { WidgetModel } from "./model";
-import { readTheme } from "./theme";
+import { toCss, viridis } from "./colour";
+import { readTheme, type Theme } from "./theme";
 // page -> server websocket messages above 10 MiB are dropped silently: PNG_MAX_BYTES stays well below
 import { PNG_MAX_BYTES, PNG_MAX_SCALE, PNG_MESSAGE } from "./wire";
 
@@ -35,13 +36,82 @@ function setViews(model: SharingModel, change: (ids: string[]) => string[]) {
   model.save_changes();
 }
 
+/** What the legend in the bar shows: a title, and category swatches or a colour ramp between two ends. */
+interface LegendShown {
+  title: string;
+  items: { colour: string; label: string }[];
+  ramp: { lo: string; hi: string } | null;
+}
+
+function legendShown(root: HTMLElement): LegendShown | null {
+  const box = root.querySelector(".axw-legend");
+  if (!box || !box.childElementCount) return null;
+  const title = box.querySelector(".axw-legend-title")?.textContent ?? "";
+  const items = Array.from(box.querySelectorAll(".axw-legend-item")).map((item) => ({
+    colour: (item.querySelector(".axw-swatch") as HTMLElement | null)?.style.background || "#888",
+    label: item.textContent ?? "",
+  }));
+  const rampEl = box.querySelector(".axw-ramp");
+  const ramp = rampEl ? { lo: rampEl.previousElementSibling?.textContent ?? "", hi: rampEl.nextElementSibling?.textContent ?? "" } : null;
+  return { title, items, ramp };
+}
+
+const TITLE_H = 24;
+const LEGEND_H = 20;
+
+/** Height (CSS px) of the strip above the chart for a title and a legend (0 when neither). */
+function stripHeight(title: string, legend: LegendShown | null): number {
+  return (title ? TITLE_H : 0) + (legend ? LEGEND_H : 0) + (title || legend ? 4 : 0);
+}
+
+/** The title and the legend, drawn at the top of a canvas whose transform is CSS px. */
+function drawStrip(ctx: CanvasRenderingContext2D, title: string, legend: LegendShown | null, width: number, theme: Theme) {
+  let y = 4;
+  ctx.textBaseline = "middle";
+  ctx.textAlign = "left";
+  if (title) {
+    ctx.fillStyle = theme.fg;
+    ctx.font = `600 14px ${theme.font}`;
+    ctx.fillText(title, 8, y + TITLE_H / 2, width - 16);
+    y += TITLE_H;
+  }
+  if (!legend) return;
+  const mid = y + LEGEND_H / 2;
+  let x = 8;
+  ctx.font = `11px ${theme.font}`;
+  const text = (t: string, colour = theme.fg) => {
+    ctx.fillStyle = colour;
+    ctx.fillText(t, x, mid);
+    x += ctx.measureText(t).width;
+  };
+  text(legend.title, theme.muted);
+  x += 10;
+  for (const item of legend.items) {
+    ctx.fillStyle = item.colour;
+    ctx.fillRect(x, mid - 5, 10, 10);
+    x += 13;
+    text(item.label);
+    x += 10;
+  }
+  if (legend.ramp) {
+    text(legend.ramp.lo);
+    x += 4;
+    const g = ctx.createLinearGradient(x, 0, x + 90, 0);
+    for (let i = 0; i <= 8; i++) g.addColorStop(i / 8, toCss(viridis(i / 8)));
+    ctx.fillStyle = g;
+    ctx.fillRect(x, mid - 5, 90, 10);
+    x += 94;
+    text(legend.ramp.hi);
+  }
+}
+
 /**
  * The picture of one view: the lines layer, the overlay on top and the status line drawn in the
  * bottom-left corner, on the theme's background, at `scale` x the canvas's CSS size.
  * The view redraws its layers at that scale when it can (view.ts layersAt); otherwise the screen's
  * canvases are resampled.
  */
-export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob: Blob; width: number; height: number }> {
+export async function snapshot(root: HTMLElement, scale: number, title = ""): Promise<{ blob: Blob; width: number; height: number }> {
   if (!(scale > 0 && scale <= PNG_MAX_SCALE)) throw new Error(`scale must be a number in (0, ${PNG_MAX_SCALE}], got ${scale}`);
   const all = Array.from(root.querySelectorAll("canvas")) as HTMLCanvasElement[];
   if (all.length === 0) throw new Error("this view has no chart to save");
@@ -54,8 +124,11 @@ export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob
     const r = c.getBoundingClientRect();
     return Math.abs(r.left - box.left) < 0.5 && Math.abs(r.top - box.top) < 0.5 && Math.abs(r.width - cssW) < 0.5 && Math.abs(r.height - cssH) < 0.5;
   });
+  // a strip above the chart for the title and the colour legend, when there is either
+  const legend = legendShown(root);
+  const strip = stripHeight(title, legend);
   const width = Math.round(cssW * scale);
-  const height = Math.round(cssH * scale);
+  const height = Math.round((cssH + strip) * scale);
   const out = document.createElement("canvas");
   out.width = width;
   out.height = height;
@@ -69,7 +142,14 @@ export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob
   // drawn afresh at this scale when the view offers it (sharp at any scale), else the screen's canvases
   const hook = viewHooks(root);
   const fresh = hook?.layersAt ? await hook.layersAt(scale).catch(() => null) : null;
-  for (const layer of fresh ?? layers) if (layer.width > 0 && layer.height > 0) ctx.drawImage(layer, 0, 0, width, height);
+  const chartH = Math.round(cssH * scale);
+  for (const layer of fresh ?? layers) if (layer.width > 0 && layer.height > 0) ctx.drawImage(layer, 0, height - chartH, width, chartH);
+  if (strip) {
+    ctx.save();
+    ctx.setTransform(scale, 0, 0, scale, 0, 0);
+    drawStrip(ctx, title, legend, cssW, theme);
+    ctx.restore();
+  }
   const status = root.querySelector(".axw-status")?.textContent ?? "";
   if (status) {
     ctx.setTransform(scale, 0, 0, scale, 0, 0);
@@ -79,9 +159,9 @@ export async function snapshot(root: HTMLElement, scale: number): Promise<{ blob
     ctx.lineWidth = 3;
     ctx.lineJoin = "round";
     ctx.strokeStyle = theme.bg;
-    ctx.strokeText(status, 4, cssH - 2);
+    ctx.strokeText(status, 4, cssH + strip - 2);
     ctx.fillStyle = theme.muted;
-    ctx.fillText(status, 4, cssH - 2);
+    ctx.fillText(status, 4, cssH + strip - 2);
   }
   const blob = await new Promise<Blob | null>((resolve) => out.toBlob(resolve, "image/png"));
   if (!blob) throw new Error("the browser could not encode the PNG");
@@ -104,7 +184,7 @@ export function attachSharing(model: SharingModel, root: HTMLElement): () => voi
     if (liveViews.get(model)?.[0] !== id) return; // one answer per page: the oldest live view's
     const reply = (body: object, buffers?: ArrayBuffer[]) =>
       model.send?.({ type: PNG_MESSAGE, id: content.id, ...body }, undefined, buffers);
-    snapshot(root, Number(content.scale ?? 1))
+    snapshot(root, Number(content.scale ?? 1), typeof content.title === "string" ? content.title : "")
       .then(async ({ blob, width, height }) => {
         if (blob.size > PNG_MAX_BYTES) {
           const mib = (blob.size / 1048576).toFixed(1);

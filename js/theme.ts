@@ -30,3 +30,32 @@ export function readTheme(el: Element): Theme {
     font: v("--jp-ui-font-family", "system-ui, -apple-system, 'Segoe UI', sans-serif"),
   };
 }
+
+/** A key that changes when any colour or the font of a theme changes. */
+export const themeKey = (t: Theme) => JSON.stringify(t);
+
+/**
+ * Call `changed` when the host's theme may have changed: JupyterLab marks its theme on `<body>`
+ * (`data-jp-theme-light`, `data-jp-theme-name`, classes); other hosts on `<html>` (class, `data-theme`)
+ * or through the system's colour scheme. The new stylesheet can apply a little after the attribute
+ * changes, so `changed` is called again twice shortly after. Returns the function that stops watching.
+ */
+export function watchTheme(changed: () => void): () => void {
+  if (typeof document === "undefined" || typeof MutationObserver === "undefined") return () => {};
+  const timers: ReturnType<typeof setTimeout>[] = [];
+  const fire = () => {
+    changed();
+    for (const ms of [80, 400]) timers.push(setTimeout(changed, ms));
+    while (timers.length > 8) clearTimeout(timers.shift());
+  };
+  const observer = new MutationObserver(fire);
+  const attributeFilter = ["class", "style", "data-jp-theme-light", "data-jp-theme-name", "data-theme", "data-mode"];
+  for (const el of [document.documentElement, document.body]) if (el) observer.observe(el, { attributes: true, attributeFilter });
+  const media = typeof matchMedia === "function" ? matchMedia("(prefers-color-scheme: dark)") : null;
+  media?.addEventListener?.("change", fire);
+  return () => {
+    observer.disconnect();
+    media?.removeEventListener?.("change", fire);
+    for (const t of timers) clearTimeout(t);
+  };
+}

@@ -4,13 +4,17 @@
 
 import { PairCache, rankCorrelation } from "./association";
 import { AxisPicker } from "./axispicker";
+import { axisStats, statsText } from "./axisstats";
 import { attachBrush, type Hit } from "./brush";
 import { colouring, hexToRgb, type Colouring } from "./colour";
 import { decodeTable, isCategorical, rowSpread, type Table } from "./data";
+import { SAVED_GROUPS, savedColouring } from "./groups";
 import { attachHooks, publishCount, publishDrawn, publishLayout } from "./hooks";
 import { drawRows, nearestRow, rowValues, type LineGeometry } from "./hover";
 import { computeLayout, sideMargins, type Layout } from "./layout";
 import { renderLegend } from "./legend";
+import { KeyboardFocus } from "./keyboard";
+import { drawContrastMarks, drawFocus } from "./marks";
 import type { WidgetModel } from "./model";
 import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, uprightText, type Theme } from "./overlay";
 import { LinePainter, type Mode, type PaintJob, type PaintResult } from "./paint";
@@ -19,6 +23,9 @@ import { ensureStyles } from "./style";
 import { KernelSync } from "./sync";
 import { fillBox, linesPerColumn, placeFloating, rowTitle, trimToFit } from "./valuesbox";
 import { chartWidth } from "./wide";
+import { themeKey, watchTheme } from "./theme";
+import { selectionSummary, SelectionTools, valueText } from "./tools";
+import { own, selKey, type Sel } from "./selection";
 import { DENSITY_ROWS, OPTIONS } from "./wire";
 
 /** Okabe–Ito vermillion: the pinned row */
@@ -68,6 +75,18 @@ export class View {
   private waiters: ((ms: number) => void)[] = [];
   /** last pointer position over the chart (logical coordinates), to place the values box */
   private pointer = { x: 0, y: 0 };
+  /** selection tools (clear all, undo/redo, invert), the live summary and the callback error line */
+  private tools: SelectionTools;
+  private keys: KeyboardFocus;
+  /** index of the axis under the pointer (its numbers in the box), or -1 */
+  private hoverAxis = -1;
+  /** the axis edited or hovered last (what "invert" acts on without keyboard focus) */
+  private lastAxis: string | null = null;
+  private themeRead = false;
+  /** an exported page has no kernel to update the contrast marks after an edit: they are dropped then */
+  private contrastStale = false;
+  /** the last axis numbers computed (one pass over the rows), kept while axis and mask stay the same */
+  private statsCache: { axis: object; mask: Uint8Array | null; stats: ReturnType<typeof axisStats> } | null = null;
 
   constructor(
     private model: WidgetModel,
@@ -125,10 +144,21 @@ export class View {
     this.loadTable();
     this.sync = new KernelSync(model, { table: () => this.table, invalidate: (lines) => this.invalidate(lines) });
     this.cleanup.push(() => this.sync.dispose());
+    this.tools = new SelectionTools({
+      table: () => this.table,
+      selection: () => this.sync.sel,
+      commit: (s) => this.commit(s),
+      activeAxis: () => (this.keys?.active && this.keys.axis) || this.lastAxis,
+    });
+    bar.insertBefore(this.tools.box, this.legend);
+    this.root.insertBefore(this.tools.errorLine, this.stage);
+    this.root.append(this.tools.live);
+    this.cleanup.push(watchTheme(() => this.refreshTheme()));
 
     this.listen("change:table", () => {
       this.loadTable();
       this.sync.tableChanged();
+      this.tools.history.reset(this.sync.sel); // edits of other data cannot be undone onto this one
       this.invalidate(true);
     });
     this.listen("change:order", () => {
@@ -138,6 +168,17 @@ export class View {
     });
     this.listen("change:height", () => this.resize());
     this.listen("change:orientation", () => this.resize());
+    this.listen("change:ranges", () => {
+      if (!this.sync.dragging) this.tools.recorded(this.sync.sel); // a selection set from Python
+    });
+    this.listen("change:saved", () => {
+      if (this.model.get("color_by") !== SAVED_GROUPS) return;
+      this.colours = null;
+      this.invalidate(true);
+    });
+    this.listen("change:callback_error", () => this.tools.showError(this.model.get("callback_error") ?? ""));
+    this.tools.showError(this.model.get("callback_error") ?? "");
+    this.listen("change:contrast_axes", () => this.invalidate(false));
     this.listen("change:color_by", () => {
       this.colours = null; // the colour groups depend on the colour column only
       this.invalidate(true);
@@ -166,9 +207,39 @@ export class View {
       toLogical: (x, y) => (this.horizontal ? { x: y, y: x } : { x, y }),
       pin: () => this.pinHover(),
       over: (hit) => this.overHit(hit),
-      commit: (r) => this.sync.edit(r, true),
+      commit: (r) => this.commit(r),
+      axisHover: (i) => this.axisHovered(i),
     });
     this.cleanup.push(detach);
+    this.overlayCanvas.setAttribute("role", "application");
+    this.overlayCanvas.setAttribute("aria-roledescription", "parallel coordinates chart");
+    this.overlayCanvas.setAttribute(
+      "aria-label",
+      "parallel coordinates chart: left and right arrows choose an axis, Enter makes a range, up and down arrows move it, Delete clears the axis",
+    );
+    this.keys = new KeyboardFocus(this.overlayCanvas, {
+      layout: () => this.layout(),
+      scales: () => this.scales(),
+      selection: () => this.sync.sel,
+      commit: (s) => this.commit(s),
+      flip: (axis) => this.flip(axis),
+      reorder: (order, final) => this.reorder(order, final),
+      undo: () => this.tools.undo(),
+      redo: () => this.tools.redo(),
+      invert: (axis) => this.tools.invert(axis),
+      focused: (axis) => {
+        if (axis) this.lastAxis = axis;
+        this.tools.refresh();
+        this.invalidate(false);
+      },
+    });
+    this.cleanup.push(() => this.keys.dispose());
+    const leave = () => {
+      this.axisHovered(-1);
+      this.hoverAt(-1, -1);
+    };
+    this.overlayCanvas.addEventListener("pointerleave", leave);
+    this.cleanup.push(() => this.overlayCanvas.removeEventListener("pointerleave", leave));
     // only a change of width matters (the docked values box changes the height, not the chart)
     let seenWidth = -1;
     const ro = new ResizeObserver(() => {
@@ -179,6 +250,36 @@ export class View {
     ro.observe(this.root);
     this.cleanup.push(() => ro.disconnect());
     this.resize();
+  }
+
+  /** A final selection edit made on the page (gesture, key, tool): sent to the kernel and recorded. */
+  private commit(s: Sel) {
+    const before = this.sync.sel;
+    const edited = [...new Set([...Object.keys(before), ...Object.keys(s)])].find(
+      (k) => selKey({ k: own(before, k) ?? { spans: [], bands: [], lane: false } }) !== selKey({ k: own(s, k) ?? { spans: [], bands: [], lane: false } }),
+    );
+    if (edited) this.lastAxis = edited;
+    if (this.model.get("_standalone")) this.contrastStale = true;
+    this.sync.edit(s, true);
+    this.tools.recorded(this.sync.sel);
+  }
+
+  /** The pointer rests on axis i (-1: on none): its selection numbers are shown in the box. */
+  private axisHovered(i: number) {
+    if (i >= 0) this.lastAxis = this.layout().slots[i]?.name ?? this.lastAxis;
+    if (i === this.hoverAxis) return;
+    this.hoverAxis = i;
+    this.tools.refresh();
+    this.invalidate(false);
+  }
+
+  /** Read the host's theme again; redraw everything when it changed (a theme switch, or a first look once shown). */
+  private refreshTheme() {
+    const next = readTheme(this.root);
+    if (themeKey(next) === themeKey(this.theme)) return;
+    this.theme = next;
+    this.colours = null;
+    this.invalidate(true);
   }
 
   private listen(event: `change:${string}`, cb: () => void) {
@@ -337,8 +438,18 @@ export class View {
   private colouringNow(): Colouring {
     if (!this.colours) {
       const by = this.model.get("color_by");
-      this.colours = colouring(by ? this.table.byName.get(by) : undefined, hexToRgb(this.theme.line));
-      renderLegend(this.legend, this.colours, by, this.scales().find((x) => x.axis.name === by));
+      const single = hexToRgb(this.theme.line);
+      if (by === SAVED_GROUPS && !this.table.byName.has(by)) {
+        this.colours = savedColouring(this.table, this.model.get("saved"), single);
+        renderLegend(this.legend, this.colours, "kept groups", undefined);
+        // test hook: rows per colour group (the last one: in no group)
+        const counts = new Array(this.colours.palette.length).fill(0);
+        for (const g of this.colours.group ?? []) counts[g]++;
+        this.root.dataset.colourGroups = JSON.stringify(counts);
+      } else {
+        this.colours = colouring(by ? this.table.byName.get(by) : undefined, single);
+        renderLegend(this.legend, this.colours, by, this.scales().find((x) => x.axis.name === by));
+      }
     }
     return this.colours;
   }
@@ -383,11 +494,18 @@ export class View {
     const hist = this.model.get("histograms") === false ? null : this.hist;
     this.picker.refresh(); // ranges may have changed which axes can be hidden
     drawOverlay(ctx, layout, this.scales(), this.sync.sel, this.theme, this.readouts(), hist);
+    drawContrastMarks(ctx, layout, this.contrastAxes(), this.theme);
+    if (this.keys.active && this.keys.axis && canvas === this.overlayCanvas) drawFocus(ctx, layout, this.scales(), this.keys.axis, this.keys.band, this.theme);
     this.drawHighlight(ctx);
     restore();
   }
 
   private paint() {
+    if (!this.themeRead && this.root.isConnected) {
+      // the host's CSS variables can only be read once the view is in the document
+      this.themeRead = true;
+      this.refreshTheme();
+    }
     const layout = this.layout();
     const dpr = window.devicePixelRatio || 1;
     if (this.dirtyLines) {
@@ -497,14 +615,23 @@ export class View {
     const rows = [pinned, this.hover].filter((r, i, all) => r >= 0 && r < n && all.indexOf(r) === i);
     const layout = this.layout();
     drawRows(ctx, this.geometry(), rows, pinned, { fg: this.theme.fg, pinned: PINNED });
-    // the hovered row floats beside the pointer; the pinned row docks below the chart
+    // the hovered row (or, resting on an axis, its numbers) floats beside the pointer; the pinned row
+    // docks below the chart
     const size = this.physicalSize();
-    if (this.hover >= 0 && this.hover < n) {
+    const pointer = layout.horizontal ? { x: this.pointer.y, y: this.pointer.x } : this.pointer;
+    const x0 = this.scroller.scrollLeft;
+    const visible = { x0, x1: x0 + (this.scroller.clientWidth || size.w), h: size.h };
+    const onAxis = this.hoverAxis >= 0 && this.hoverAxis < layout.slots.length;
+    if (onAxis && !this.sync.dragging) {
+      this.tip.style.display = "block";
+      const text = document.createElement("div");
+      text.className = "axw-tip-text";
+      text.textContent = this.axisText(this.hoverAxis);
+      this.tip.replaceChildren(text);
+      placeFloating(this.tip, pointer, visible);
+    } else if (!onAxis && this.hover >= 0 && this.hover < n) {
       this.tip.style.display = "block";
       fillBox(this.tip, rowTitle(this.table, this.hover, this.hover === pinned), rowValues(this.table, layout, this.scales(), this.hover), linesPerColumn(size.h - 8));
-      const pointer = layout.horizontal ? { x: this.pointer.y, y: this.pointer.x } : this.pointer;
-      const x0 = this.scroller.scrollLeft;
-      const visible = { x0, x1: x0 + (this.scroller.clientWidth || size.w), h: size.h };
       placeFloating(this.tip, pointer, visible);
       if (trimToFit(this.tip)) placeFloating(this.tip, pointer, visible);
     } else this.tip.style.display = "none";
@@ -555,12 +682,33 @@ export class View {
     return boxes;
   }
 
+  /** The axes the kernel marked as setting the selection apart (none once an exported page was edited). */
+  private contrastAxes(): string[] {
+    return this.contrastStale ? [] : (this.model.get("contrast_axes") ?? []);
+  }
+
+  /** The selection numbers of axis i: selected vs all rows, median or most common label, missing. */
+  private axisText(i: number): string {
+    const sc = this.scales()[i];
+    const rank = this.contrastAxes().indexOf(sc.axis.name);
+    const marks = rank >= 0 ? [`marked: rank ${rank + 1} of the axes where the selected rows differ most (w.contrast())`] : [];
+    const mask = this.sync.shown().mask;
+    const c = this.statsCache;
+    const st = c && c.axis === sc.axis && c.mask === mask ? c.stats : axisStats(sc.axis, mask);
+    this.statsCache = { axis: sc.axis, mask, stats: st };
+    return statsText(st, sc.axis.kind, (v) => valueText(sc, v), (b) => sc.bandLabel(b), marks);
+  }
+
   private updateStatus(layout: Layout) {
     const n = this.table.n;
     const fmt = (v: number) => v.toLocaleString("en-US");
     const { count, preview } = this.sync.status();
     this.status.textContent = preview ? `≈ ${fmt(count)} of ${fmt(n)} rows selected (checking…)` : `${fmt(count)} of ${fmt(n)} rows selected`;
     publishCount(this.root, count, n, preview);
+    if (!this.sync.dragging) {
+      const focus = this.keys.active && this.keys.axis ? this.focusPhrase() : "";
+      this.tools.speak(focus + selectionSummary(this.table, this.sync.sel, this.scales(), count, preview));
+    }
     publishLayout(this.root, {
       layout,
       scales: this.scales(),
@@ -569,6 +717,16 @@ export class View {
       hover: this.hover,
       pinned: this.model.get("pinned") ?? -1,
     });
+  }
+
+  /** "Axis 3 of 10: flow_m3h (number). " — said when the keyboard focus is on an axis. */
+  private focusPhrase(): string {
+    const i = this.keys.index();
+    const slots = this.layout().slots;
+    if (i < 0) return "";
+    const sc = this.scales()[i];
+    const band = sc.categorical && this.keys.band >= 0 ? `, band ${sc.bandLabel(this.keys.band)}` : "";
+    return `Axis ${i + 1} of ${slots.length}: ${slots[i].name} (${sc.axis.kind}${sc.flipped ? ", flipped" : ""}${band}). `;
   }
 
   destroy() {

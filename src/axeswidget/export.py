@@ -107,11 +107,13 @@ def _check_scale(scale) -> float:
     return float(scale)
 
 
-def save_png(widget, path, scale: float = 1) -> PngRequest:
+def save_png(widget, path, scale: float = 1, title: str | None = None) -> PngRequest:
     """Ask the page showing ``widget`` for a PNG of the chart and write it to ``path`` when it arrives.
 
     The picture is what the page shows (lines, axes, ranges and the status line in the bottom-left
-    corner) at ``scale`` times the chart's size in CSS pixels, ``scale`` in (0, 4]. It is composed from
+    corner) at ``scale`` times the chart's size in CSS pixels, ``scale`` in (0, 4]. When the lines are
+    coloured, or a ``title`` is given, a strip above the chart holds the title and the colour legend
+    (the picture is then taller by that strip). It is composed from
     the page's canvases, which are drawn at the screen's pixel density: a scale above that density
     enlarges them smoothly but adds no detail. PNGs above 8 MiB are refused by the page (the server
     drops larger page-to-kernel messages); use a smaller scale then.
@@ -129,6 +131,8 @@ def save_png(widget, path, scale: float = 1) -> PngRequest:
     """
     _check_widget(widget, "save_png")
     scale = _check_scale(scale)
+    if title is not None and not isinstance(title, str):
+        raise TypeError(f"title must be text or None, got {type(title).__name__}")
     path = Path(path)
     if not path.parent.is_dir():
         raise ValueError(f"cannot write {str(path)!r}: the folder {str(path.parent)!r} does not exist")
@@ -143,7 +147,10 @@ def save_png(widget, path, scale: float = 1) -> PngRequest:
         widget.on_msg(_on_message)
     request = PngRequest(path, scale, next(_ids))
     waiting[request.id] = request
-    widget.send({"type": PNG_MESSAGE, "id": request.id, "scale": scale})
+    message = {"type": PNG_MESSAGE, "id": request.id, "scale": scale}
+    if title:
+        message["title"] = title
+    widget.send(message)
     return request
 
 

@@ -107,6 +107,8 @@ class AxesWidget(anywidget.AnyWidget):
     hidden = t.List(t.Unicode()).tag(sync=True)
     orientation = t.Enum(["vertical", "horizontal"], "vertical").tag(sync=True)
     callback_error = t.Unicode("").tag(sync=True)
+    #: kernel -> page: up to 3 axes where the selected rows differ most from the rest (``contrast()``)
+    contrast_axes = t.List(t.Unicode()).tag(sync=True)
 
     def __init__(
         self, data, axes=None, *, ranges=None, height: int = 380, names=None, resume=None, **options
@@ -266,7 +268,7 @@ class AxesWidget(anywidget.AnyWidget):
     def _check_axis_option(self, proposal):
         """An axis name (or "" for none); bundle_by needs a category axis."""
         name, option = proposal["value"], proposal["trait"].name
-        if not name:
+        if not name or (option == "color_by" and name == SAVED_GROUPS and name not in self._columns):
             return name
         col = self._columns.get(name)
         if col is None:
@@ -359,18 +361,47 @@ class AxesWidget(anywidget.AnyWidget):
         with self._state_lock:
             changed = not self._evaluator.evaluated or ranges != self._evaluator.ranges
             page = self._page_edit
+            # the contrast markers follow final selections (kept as they were while dragging)
+            mark = not self.dragging and (changed or self._was_dragging)
             with self.hold_sync():
                 if changed:
                     mask = self._evaluator.update(ranges)
                     self.mask_bits = pack(mask)
                     self.count = int(np.count_nonzero(mask))
                 self.answered_seq = self.edit_seq
-                if page and not self.dragging:
+                final_page_edit = page and not self.dragging
+                if final_page_edit:
                     # a final edit from the page: callbacks first, then the answer goes out (on leaving
                     # hold_sync), so the page's exact count means the callbacks are done
                     self._notify(changed, page=True)
-                    return
-            self._notify(changed, page=page)
+            if not final_page_edit:
+                self._notify(changed, page=page)
+            # computed after the answer and the callbacks, so it never delays the exact count
+            if mark:
+                self._mark_contrast()
+
+    def _mark_contrast(self) -> None:
+        """Name the 3 unbrushed axes that set a final selection apart most (``contrast``) for the page.
+
+        An empty list without a proper selection (no row or every row selected) and above
+        ``CONTRAST_MAX_ROWS`` rows, where it would slow every edit down.
+        """
+        mask = self._evaluator.mask
+        n, picked = len(mask), self.count
+        if not 0 < picked < n or n > CONTRAST_MAX_ROWS:
+            self.contrast_axes = []
+            return
+        try:
+            # huge values (1e300) overflow the spread of the mean difference: not the user's concern here
+            with np.errstate(all="ignore"), warnings.catch_warnings():
+                warnings.simplefilter("ignore", RuntimeWarning)
+                table = contrast.compare(self._columns, mask, brushed=self.ranges)
+        except ValueError:
+            self.contrast_axes = []
+            return
+        # the brushed axes differ by construction: mark the others
+        top = table[table["statistic"].notna() & ~table["brushed"]]["axis"].head(3)
+        self.contrast_axes = [str(a) for a in top]
 
     @t.validate("saved")
     def _check_saved(self, proposal):
@@ -572,15 +603,17 @@ class AxesWidget(anywidget.AnyWidget):
         )
 
     # -- sharing -------------------------------------------------------------------------------------
-    def save_png(self, path, scale: float = 1) -> export.PngRequest:
+    def save_png(self, path, scale: float = 1, title: str | None = None) -> export.PngRequest:
         """Ask the page for a PNG of the chart at ``scale`` x its size on screen.
+
+        The picture includes the colour legend (when lines are coloured) and ``title`` above the chart.
 
         The page draws the picture and sends it back; in Jupyter the file is written once the cell
         that asked has finished (a kernel reads messages from the page between cells). The returned
         request object tells whether it is done (``.done``, ``.error``). Raises a clear error when no
         view of the widget is showing.
         """
-        return export.save_png(self, path, scale)
+        return export.save_png(self, path, scale, title=title)
 
     def to_html(self, path=None, *, title: str = "axeswidget chart"):
         """One self-contained HTML page of the chart (code, data, current view) that works offline.
@@ -660,6 +693,11 @@ _OPTIONS = wire.OPTIONS
 #: the traits a data swap or ``resume=`` carries over besides the options
 _VIEW = ("order", "ranges", "flipped", "saved", "pinned", "hidden")
 HEIGHT_MIN, HEIGHT_MAX = 120, 4000
+#: ``color_by`` value that colours rows by the kept selections (``saved``; first group wins, as ``labels()``)
+SAVED_GROUPS = "@saved"
+#: above this many rows the page's contrast markers are not computed (``contrast()`` still works): measured
+#: here, ``contrast.compare`` over 13 axes takes ~0.4 s at 10^5 rows and ~5 s at 10^6, after every edit
+CONTRAST_MAX_ROWS = 200_000
 
 
 def _snapshot(data):

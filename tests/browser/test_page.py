@@ -74,13 +74,22 @@ def test_category_and_datetime_axes_brushed_with_the_mouse(show, fleet):
     ref = fleet["site"].isin(["Red Gully"]) & fleet["last_service"].between(lo, hi)
     np.testing.assert_array_equal(w.mask, ref.to_numpy())
     assert int(s.root().get_attribute("data-count")) == int(ref.sum())
-    # the missing-values lane and a boolean band are clicked like categories
+    # the missing-values lane and a boolean band are clicked like categories; an axis without missing
+    # values has no box to click (issue 14, item 6): a click there picks nothing
     lay = s.layout()
     s.page.mouse.click(s.x_of("fault"), box["y"] + lay["laneY"])
     s.round_trip()
+    assert "fault" not in w.ranges and w.count == int(ref.sum())
+    # a lane picked from Python is drawn there, and a click on it unpicks it
+    w.ranges = {**w.ranges, "fault": [None]}
+    s.pull_from_kernel()
     assert w.ranges["fault"] == [None]
     assert w.count == 0  # the fault flag has no missing values (reference: fleet["fault"].isna().sum() == 0)
     assert fleet["fault"].isna().sum() == 0
+    assert s.root().get_attribute("data-count") == "0"
+    s.page.mouse.click(s.x_of("fault"), box["y"] + lay["laneY"])
+    s.round_trip()
+    assert "fault" not in w.ranges and w.count == int(ref.sum())
     assert not s.errors
 
 
