@@ -54,6 +54,11 @@ export class SelectionHistory {
     return cloneSel(next);
   }
 
+  /** The present selection (a copy). */
+  get current(): Sel {
+    return cloneSel(this.present);
+  }
+
   /** Replace the present selection without a new step (the same edit as read back from the kernel). */
   settle(sel: Sel): void {
     this.present = cloneSel(sel);

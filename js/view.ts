@@ -25,7 +25,7 @@ import { fillBox, linesPerColumn, placeFloating, rowTitle, trimToFit } from "./v
 import { chartWidth } from "./wide";
 import { themeKey, watchTheme } from "./theme";
 import { selectionSummary, SelectionTools, valueText } from "./tools";
-import { own, selKey, type Sel } from "./selection";
+import { own, previewMask, selKey, type Sel } from "./selection";
 import { DENSITY_ROWS, OPTIONS } from "./wire";
 
 /** Okabe–Ito vermillion: the pinned row */
@@ -151,7 +151,7 @@ export class View {
       activeAxis: () => (this.keys?.active && this.keys.axis) || this.lastAxis,
     });
     bar.insertBefore(this.tools.box, this.legend);
-    this.root.insertBefore(this.tools.errorLine, this.stage);
+    this.root.insertBefore(this.tools.errorLine, this.scroller);
     this.root.append(this.tools.live);
     this.cleanup.push(watchTheme(() => this.refreshTheme()));
 
@@ -169,7 +169,12 @@ export class View {
     this.listen("change:height", () => this.resize());
     this.listen("change:orientation", () => this.resize());
     this.listen("change:ranges", () => {
-      if (!this.sync.dragging) this.tools.recorded(this.sync.sel); // a selection set from Python
+      if (this.sync.dragging) return;
+      // the kernel's reading of the page's own edit (ends rounded, same rows) is not a new step;
+      // a selection set from Python is
+      const present = this.tools.history.current;
+      if (sameRows(this.table, present, this.sync.sel)) this.tools.history.settle(this.sync.sel);
+      else this.tools.recorded(this.sync.sel);
     });
     this.listen("change:saved", () => {
       if (this.model.get("color_by") !== SAVED_GROUPS) return;
@@ -495,7 +500,7 @@ export class View {
     this.picker.refresh(); // ranges may have changed which axes can be hidden
     drawOverlay(ctx, layout, this.scales(), this.sync.sel, this.theme, this.readouts(), hist);
     drawContrastMarks(ctx, layout, this.contrastAxes(), this.theme);
-    if (this.keys.active && this.keys.axis && canvas === this.overlayCanvas) drawFocus(ctx, layout, this.scales(), this.keys.axis, this.keys.band, this.theme);
+    if (this.keys?.active && this.keys.axis && canvas === this.overlayCanvas) drawFocus(ctx, layout, this.scales(), this.keys.axis, this.keys.band, this.theme);
     this.drawHighlight(ctx);
     restore();
   }
@@ -706,7 +711,7 @@ export class View {
     this.status.textContent = preview ? `≈ ${fmt(count)} of ${fmt(n)} rows selected (checking…)` : `${fmt(count)} of ${fmt(n)} rows selected`;
     publishCount(this.root, count, n, preview);
     if (!this.sync.dragging) {
-      const focus = this.keys.active && this.keys.axis ? this.focusPhrase() : "";
+      const focus = this.keys?.active && this.keys.axis ? this.focusPhrase() : "";
       this.tools.speak(focus + selectionSummary(this.table, this.sync.sel, this.scales(), count, preview));
     }
     publishLayout(this.root, {
@@ -735,4 +740,14 @@ export class View {
     for (const f of this.cleanup) f();
     this.root.remove();
   }
+}
+
+/** Two selections pick the same rows of the page (compared on the page's codes). */
+function sameRows(table: Table, a: Sel, b: Sel): boolean {
+  if (selKey(a) === selKey(b)) return true;
+  const ma = previewMask(table, a);
+  const mb = previewMask(table, b);
+  if (ma.count !== mb.count) return false;
+  for (let i = 0; i < ma.mask.length; i++) if (ma.mask[i] !== mb.mask[i]) return false;
+  return true;
 }
