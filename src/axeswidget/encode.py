@@ -24,6 +24,7 @@ import math
 import warnings
 from dataclasses import dataclass, field
 
+import narwhals as nw
 import numpy as np
 import pandas as pd
 
@@ -116,9 +117,9 @@ class Column:
 def to_frame(data, names=None) -> pd.DataFrame:
     """Accept the supported table types and return a pandas DataFrame (no copy where possible).
 
-    pandas DataFrame; polars DataFrame; pyarrow Table or RecordBatch; any object offering the Arrow
-    PyCapsule stream interface (``__arrow_c_stream__``); a dict of 1-D arrays; a 2-D numpy array
-    (column names from ``names``, otherwise ``"0", "1", ...``).
+    pandas DataFrame; any eager table narwhals reads (polars DataFrame, pyarrow Table, ...); any object
+    offering the Arrow PyCapsule stream interface (``__arrow_c_stream__``, e.g. a pyarrow RecordBatch);
+    a dict of 1-D arrays; a 2-D numpy array (column names from ``names``, otherwise ``"0", "1", ...``).
     """
     if isinstance(data, pd.DataFrame):
         return data.copy(deep=False)  # copy-on-write: later edits of the user's frame do not leak in
@@ -141,13 +142,17 @@ def to_frame(data, names=None) -> pd.DataFrame:
             )
         except ValueError as err:
             raise ValueError(f"axeswidget: the dict's arrays cannot form a table: {err}") from None
-    mod = type(data).__module__.split(".")[0]
-    if mod == "polars":
-        check_names([str(c) for c in data.columns])
-        return _foreign(data.to_pandas, "polars")
-    if mod == "pyarrow" and hasattr(data, "to_pandas"):
-        check_names([str(c) for c in data.schema.names] if hasattr(data, "schema") else [])
-        return _foreign(lambda: data.to_pandas(date_as_object=False), "pyarrow")  # dates as datetime64
+    try:  # any eager table narwhals reads (polars, pyarrow, modin, cudf, ...)
+        table = nw.from_native(data, eager_only=True)
+    except TypeError:
+        table = None
+    if table is not None:
+        check_names([str(c) for c in table.columns])
+        library = table.implementation.name.lower()
+        if table.implementation is nw.Implementation.PYARROW:  # dates as datetime64, not objects
+            native = table.to_native()
+            return _foreign(lambda: native.to_pandas(date_as_object=False), library)
+        return _foreign(table.to_pandas, library)
     if hasattr(data, "__arrow_c_stream__"):
         import pyarrow as pa
 
@@ -458,6 +463,25 @@ def _twice(name: str, names: list[str]) -> str:
     return "the name appears more than once"
 
 
-def table_trait(columns: dict[str, Column], n: int) -> dict:
-    """The value of the widget's ``table`` trait: row count plus one spec (with its buffer) per axis."""
-    return {"n": int(n), "columns": [c.spec() for c in columns.values()]}
+def table_trait(
+    columns: dict[str, Column], n: int, codes: dict | None = None, total: int | None = None
+) -> dict:
+    """The value of the widget's ``table`` trait: row counts plus one spec (with its buffer) per axis.
+
+    Without ``codes`` every row's codes are sent (``n`` rows, ``total == n``, ``sampled`` False). With
+    ``codes`` (axis -> uint16 codes of ``n`` sample rows) and ``total`` (all rows), the buffers carry
+    the sample while the specs still describe all ``total`` rows.
+    """
+    specs = []
+    for col in columns.values():
+        spec = col.spec()
+        if codes is not None:
+            spec["codes"] = memoryview(np.ascontiguousarray(codes[col.name], dtype=np.uint16)).cast("B")
+        specs.append(spec)
+    sampled = codes is not None
+    return {
+        "n": int(n),
+        "total": int(n if total is None else total),
+        "sampled": sampled,
+        "columns": specs,
+    }

@@ -53,6 +53,26 @@ def find_files(path) -> list[str]:
     return found
 
 
+def read_files(path, connection=None):
+    """``(relation, connection, description)`` of Parquet or CSV files; nothing is read but the schema."""
+    import duckdb
+
+    files = find_files(path)
+    con = connection if connection is not None else duckdb.connect()
+    csv = [f for f in files if f.lower().endswith(_CSV)]
+    where = f"files {path!r}" if len(files) > 1 else f"file {files[0]!r}"
+    try:
+        if csv and len(csv) == len(files):
+            relation = con.read_csv(files)
+        elif csv:
+            raise SourceError(f"axeswidget: {path!r} mixes CSV and Parquet files; open one kind at once")
+        else:
+            relation = con.read_parquet(files)
+    except duckdb.Error as err:
+        raise EngineError(f"axeswidget: DuckDB cannot read {where}: {err}") from err
+    return relation, con, where
+
+
 class DuckDBSource(SqlSource):
     """A DuckDB relation (or files opened with :meth:`open_files`) as a data source."""
 
@@ -74,21 +94,7 @@ class DuckDBSource(SqlSource):
     @classmethod
     def open_files(cls, path, axes=None, *, connection=None) -> DuckDBSource:
         """Open Parquet or CSV files (a path, folder, glob or list) with DuckDB, out of core."""
-        import duckdb
-
-        files = find_files(path)
-        con = connection if connection is not None else duckdb.connect()
-        csv = [f for f in files if f.lower().endswith(_CSV)]
-        where = f"files {path!r}" if len(files) > 1 else f"file {files[0]!r}"
-        try:
-            if csv and len(csv) == len(files):
-                relation = con.read_csv(files)
-            elif csv:
-                raise SourceError(f"axeswidget: {path!r} mixes CSV and Parquet files; open one kind at once")
-            else:
-                relation = con.read_parquet(files)
-        except duckdb.Error as err:
-            raise EngineError(f"axeswidget: DuckDB cannot read {where}: {err}") from err
+        relation, con, where = read_files(path, connection)
         return cls(relation, axes, connection=con, where=where)
 
     # -- engine hooks ------------------------------------------------------------------------------------
