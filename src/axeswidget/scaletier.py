@@ -14,9 +14,11 @@ between every pair of axes (``rank_matrix`` trait). The contract is SCALE_CONTRA
 
 from __future__ import annotations
 
+import atexit
 import json
 import math
 import threading
+import weakref
 from collections.abc import Callable
 
 import narwhals as nw
@@ -28,6 +30,17 @@ from . import measures
 #: rows above which the rank matrix is measured on a seeded sample (as ``association``'s default)
 RANK_ROWS = 200_000
 _UINT32_MAX = np.iinfo(np.uint32).max
+
+
+_RUNNERS: weakref.WeakSet = weakref.WeakSet()
+
+
+@atexit.register
+def _finish_jobs() -> None:
+    """At exit, let running engine queries end (an engine torn down under a running query aborts)."""
+    for runner in list(_RUNNERS):
+        runner.cancel()
+        runner.wait(30)
 
 
 class LatestRunner:
@@ -46,6 +59,7 @@ class LatestRunner:
         self.generation = 0
         #: the last exception a job raised (kept for the caller to report), or None
         self.error: BaseException | None = None
+        _RUNNERS.add(self)
 
     def submit(self, job: Callable[[Callable[[], bool]], None]) -> None:
         with self._cond:
@@ -118,6 +132,7 @@ def count_pairs(
     it is updated in place. In-memory sources count the rows of ``mask`` (the selection already
     evaluated), engines run the selection. Returns None when a newer job took over meanwhile.
     """
+    source = source.background()
     pairs = list(zip(order[:-1], order[1:], strict=True))
     every = cache.setdefault("all", {})
     for chain in _chains(order, {p for p in pairs if p not in every}):

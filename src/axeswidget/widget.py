@@ -481,6 +481,8 @@ class AxesWidget(anywidget.AnyWidget):
         """Show a new table; the view is carried over where it fits (see ``carryover``), all or nothing."""
         axes = self._axes_arg
         notes = []
+        self._pair_jobs.cancel()  # the old table's counts are not wanted; let a running query end
+        self._pair_jobs.wait(60)
         if axes is not None:  # axes named at construction that the new table lacks are dropped too
             labels = _column_labels(new)
             present = {display_name(c) for c in labels} | set(labels)

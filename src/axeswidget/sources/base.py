@@ -158,6 +158,10 @@ class DataSource(abc.ABC):
     def sample(self, k: int, seed: int = 0) -> Sample:
         """Codes and values of ``min(k, n)`` rows chosen by ``seed`` (the same rows for the same seed)."""
 
+    def background(self) -> DataSource:
+        """The source to query from a background thread (itself unless the engine needs another handle)."""
+        return self
+
     # -- selection -------------------------------------------------------------------------------------
     def prepare(self, ranges: Ranges) -> None:
         """Evaluate a selection ahead (so that a failure is raised before anything changes).
