@@ -228,6 +228,7 @@ def test_rank_matrix_uses_a_seeded_sample_above_200000_rows():
     x = rng.normal(size=n)
     frame = pd.DataFrame({"x": x, "y": x + rng.normal(size=n), "z": rng.random(n)})
     w = aw.AxesWidget(frame, sample_above=100_000, sample_size=1000)
+    assert w._wait_pair_counts()  # above 200,000 rows the matrix is measured in the background
     rho = pd.DataFrame(w.rank_matrix["values"], index=["x", "y", "z"], columns=["x", "y", "z"])
     rows = frame.iloc[sample_positions(n, 200_000)]  # the documented seeded sample (association's rule)
     want = stats.spearmanr(rows).statistic  # reference: scipy.stats.spearmanr

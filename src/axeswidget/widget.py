@@ -101,6 +101,7 @@ class AxesWidget(anywidget.AnyWidget):
         super().__init__(height=height, sample_above=sample_above, sample_size=sample_size)
         self._lock = threading.RLock()  # comm messages and cells may run at once
         self._pair_jobs = scaletier.LatestRunner("axeswidget pair counts")
+        self._rank_jobs = scaletier.LatestRunner("axeswidget rank matrix")
         self._axes_arg = axes
         self._callbacks: list[list] = []  # [callback, min_interval_while_dragging, last_call_time]
         self._was_dragging = False
@@ -179,10 +180,12 @@ class AxesWidget(anywidget.AnyWidget):
                         col.encode()
                 sample = self._draw_sample(source)
                 value = self._table_value(source, sample)
-                ranks = scaletier.rank_matrix(source, sample)
+                later = source.in_memory and source.n > scaletier.RANK_ROWS  # sampled: in the background
+                ranks = {} if later else scaletier.rank_matrix(source, sample)
                 self._source, self._sample = source, sample
                 self._mask, self._applied, self._pair_cache = None, None, {}
                 self._pair_jobs.cancel()
+                self._rank_jobs.cancel()
                 with self.hold_trait_notifications():
                     self.table = value
                     self.rank_matrix = ranks
@@ -201,7 +204,21 @@ class AxesWidget(anywidget.AnyWidget):
                             before_wire
                         )
                 raise
+            if later:
+                self._measure_ranks()
             self._count_pairs()
+
+    def _measure_ranks(self) -> None:
+        """Compute ``rank_matrix`` in the background (a 200,000-row sample of a big table takes a while)."""
+        source, sample = self._source, self._sample
+
+        def job(is_latest):
+            value = scaletier.rank_matrix(source, sample)
+            with self._lock:
+                if is_latest() and self._source is source:
+                    self.rank_matrix = value
+
+        self._rank_jobs.submit(job)
 
     def _count_pairs(self) -> None:
         """Recount the pair counts of the current order in the background (scale tier only).
@@ -226,10 +243,11 @@ class AxesWidget(anywidget.AnyWidget):
             self._pair_jobs.submit(job)
 
     def _wait_pair_counts(self, timeout: float = 60.0) -> bool:
-        """Block until the background pair counts are published (tests, benchmarks)."""
-        done = self._pair_jobs.wait(timeout)
-        if self._pair_jobs.error is not None:
-            raise self._pair_jobs.error
+        """Block until the background pair counts and rank matrix are published (tests, benchmarks)."""
+        done = self._pair_jobs.wait(timeout) and self._rank_jobs.wait(timeout)
+        for runner in (self._pair_jobs, self._rank_jobs):
+            if runner.error is not None:
+                raise runner.error
         return done
 
     # -- traits ------------------------------------------------------------------------------------
