@@ -269,3 +269,18 @@ def test_a_swap_keeps_the_tier_and_the_view(widget, table):
     assert widget.count == int(reference_mask(table.iloc[: N - 10]).sum())  # reference: pandas
     assert widget._wait_pair_counts()
     assert widget.pair_counts["order"] == list(reversed(ORDER))
+
+
+def test_block_counting_matches_histogram2d_over_many_blocks():
+    from axeswidget.density import BLOCK_ROWS, count_bin_pairs
+
+    rng = np.random.default_rng(2)
+    n, bins = 3 * BLOCK_ROWS + 123, 128
+    left = rng.integers(0, bins + 1, n).astype(np.uint8)
+    right = rng.integers(0, bins + 1, n).astype(np.uint8)
+    mask = rng.random(n) < 0.3
+    edges = np.arange(bins + 2) - 0.5
+    for keep in (None, mask):
+        rows = slice(None) if keep is None else keep
+        want, _, _ = np.histogram2d(left[rows], right[rows], bins=[edges, edges])  # reference: numpy
+        np.testing.assert_array_equal(count_bin_pairs(left, right, bins, keep), want.astype(np.int64))

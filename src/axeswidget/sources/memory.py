@@ -14,7 +14,7 @@ import narwhals as nw
 import numpy as np
 import pandas as pd
 
-from ..density import _count
+from ..density import count_bin_pairs
 from ..encode import encode_frame, to_frame
 from ..selection import MaskEvaluator, Ranges
 from .base import DataSource, Sample, axis_bins, check_ranges
@@ -114,20 +114,17 @@ class MemorySource(DataSource):
     ) -> list[np.ndarray]:
         """As :meth:`DataSource.pair_counts`; ``mask`` (the selection already evaluated) skips the evaluation.
 
-        One pair at a time: at most two axes' selected bins and one pair index are held at once.
+        One pair at a time, in blocks of rows (:func:`axeswidget.density.count_bin_pairs`): no n-length
+        index array, no compacted copy of the selected rows.
         """
         order, bins = self._order(order, bins)
         if mask is None and ranges:
             mask = self.mask(ranges)
-        out, left = [], None
-        for axis in order:
-            right = self.bins_of(axis, bins)
-            if mask is not None:
-                right = right[mask]
-            if left is not None:
-                out.append(_count(left, right, bins))
-            left = right
-        return out
+        binned = [self.bins_of(axis, bins) for axis in order]
+        return [
+            count_bin_pairs(left, right, bins, mask)
+            for left, right in zip(binned[:-1], binned[1:], strict=True)
+        ]
 
     def float_axes(self) -> set[str]:
         return {
