@@ -187,3 +187,19 @@ def test_a_spark_dataframe_through_the_widget(spark, tmp_path, table):  # noqa: 
     check_pair_counts(w, table, expected)
     w.set_state({"ranges": {"stage": [[1, 3]]}, "edit_seq": 2, "dragging": False})
     assert w.count == int(table["stage"].between(1, 3).sum()) and w.answered_seq == 2  # reference: pandas
+
+
+def test_a_log_axis_on_an_engine_table_resamples_its_codes():
+    con = duckdb.connect()
+    relation = con.sql("SELECT (i % 97) + 1.0 AS level, i * 0.5 AS other FROM range(5000) t(i)")
+    w = aw.AxesWidget(relation, sample_size=200)
+    w.log_axes = ["level"]
+    spec = w.table["columns"][0]
+    assert spec["name"] == "level" and spec["log"]
+    values = w._sample.rows["level"].to_numpy(dtype=float)
+    # reference: the documented wire rule in log space, with numpy (lo = 1, hi = 97 for this data)
+    lo, hi = np.log(1.0), np.log(97.0)
+    want = np.rint((np.log(values) * 0.5 - lo * 0.5) * (65534 / (hi * 0.5 - lo * 0.5))).astype(np.uint16)
+    np.testing.assert_array_equal(np.frombuffer(spec["codes"], dtype=np.uint16), want)
+    w.ranges = {"level": [[10, 20]]}
+    assert w.count == int(sum(10 <= (i % 97) + 1 <= 20 for i in range(5000)))  # reference: plain Python
