@@ -284,3 +284,11 @@ def test_block_counting_matches_histogram2d_over_many_blocks():
         rows = slice(None) if keep is None else keep
         want, _, _ = np.histogram2d(left[rows], right[rows], bins=[edges, edges])  # reference: numpy
         np.testing.assert_array_equal(count_bin_pairs(left, right, bins, keep), want.astype(np.int64))
+
+
+def test_changing_the_tier_unpins_the_row_and_keeps_the_selection(table):
+    w = aw.AxesWidget(table, ranges=SELECTION)
+    w.pinned = 4321  # a row position among all rows
+    w.sample_above, w.sample_size = ABOVE, K
+    assert w.pinned == -1  # the page now holds sample rows: position 4321 is gone
+    assert w.table["n"] == K and w.count == int(reference_mask(table).sum())  # reference: pandas

@@ -385,7 +385,11 @@ class AxesWidget(anywidget.AnyWidget):
     @t.observe("sample_above", "sample_size")
     def _on_tier(self, change):
         if getattr(self, "_source", None) is not None and change["old"] != change["new"]:
-            self._switch(self._source, self._view())
+            view = {
+                **self._view(),
+                "pinned": -1,
+            }  # the page's rows change: a pinned position means another row
+            self._switch(self._source, view)
 
     @t.validate("sample_above", "sample_size")
     def _check_tier(self, proposal):
