@@ -58,12 +58,18 @@ def find_files(path) -> list[str]:
 _RELATION_LOCK = threading.RLock()
 
 
+def _quiet(connection):
+    """A connection of the widget's own: no progress bar printed into the notebook by its queries."""
+    connection.execute("SET enable_progress_bar = false")
+    return connection
+
+
 def read_files(path, connection=None):
     """``(relation, connection, description)`` of Parquet or CSV files; nothing is read but the schema."""
     import duckdb
 
     files = find_files(path)
-    con = connection if connection is not None else duckdb.connect()
+    con = connection if connection is not None else _quiet(duckdb.connect())
     csv = [f for f in files if f.lower().endswith(_CSV)]
     where = f"files {path!r}" if len(files) > 1 else f"file {files[0]!r}"
     try:
@@ -122,7 +128,7 @@ class DuckDBSource(SqlSource):
             return self
         if self._worker is None:
             worker = copy.copy(self)
-            cursor = self.connection.cursor()
+            cursor = _quiet(self.connection.cursor())
             worker.native = read_files(self.files, cursor)[0]
             worker.connection, worker._lock, worker._worker = cursor, threading.RLock(), None
             self._worker = worker
