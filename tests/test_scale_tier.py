@@ -292,3 +292,26 @@ def test_changing_the_tier_unpins_the_row_and_keeps_the_selection(table):
     w.sample_above, w.sample_size = ABOVE, K
     assert w.pinned == -1  # the page now holds sample rows: position 4321 is gone
     assert w.table["n"] == K and w.count == int(reference_mask(table).sum())  # reference: pandas
+
+
+def test_edits_from_a_cell_and_from_the_page_at_once_stay_consistent(widget, table):
+    # ipykernel may handle a comm message (the page's edit) while a cell sets ranges: the widget's lock
+    # keeps count, mask and mask_bits answering one and the same selection
+    def from_page():
+        for i in range(30):
+            widget.set_state({"ranges": {"flow": [[-1.0, 0.1 * i]]}, "edit_seq": 100 + i, "dragging": False})
+
+    page = threading.Thread(target=from_page)
+    page.start()
+    for i in range(30):
+        widget.ranges = {"stage": [[1, 1 + i % 5]]}
+    page.join()
+    assert widget._wait_pair_counts()
+    final = widget.ranges
+    want = np.ones(N, dtype=bool)  # reference: pandas Series.between on the final selection
+    for axis, items in final.items():
+        want &= table[axis].between(items[0][0], items[0][1]).to_numpy()
+    assert widget.count == int(want.sum())
+    np.testing.assert_array_equal(widget.mask, want)
+    np.testing.assert_array_equal(unpack(widget.mask_bits, K), want[sample_positions(N, K)])
+    assert matrices(widget.pair_counts)[ORDER[0], ORDER[1]][1].sum() == int(want.sum())
