@@ -43,17 +43,19 @@ def take_rows(native, frame: pd.DataFrame, mask: np.ndarray):
 def snapshot(data):
     """The source's own copy of the user's table object (for ``selected`` in the input's type).
 
-    numpy arrays and dicts of arrays are copied, a polars frame cloned (polars copies on write), so
-    later in-place edits of the user's object stay theirs; pandas frames are read copy-on-write by
-    ``to_frame``; pyarrow tables cannot be edited in place.
+    numpy arrays and dicts of arrays are copied, eager tables narwhals reads are cloned (polars copies
+    on write), so later in-place edits of the user's object stay theirs; pandas frames are read
+    copy-on-write by ``to_frame``.
     """
     if isinstance(data, np.ndarray):
         return data.copy()
     if isinstance(data, dict):
         return {k: np.array(v, copy=True) for k, v in data.items()}
-    if type(data).__module__.split(".")[0] == "polars" and hasattr(data, "clone"):
-        return data.clone()
-    return data
+    try:
+        table = nw.from_native(data, eager_only=True)
+    except TypeError:
+        return data  # Arrow streams and record batches cannot be edited in place
+    return table.clone().to_native()  # polars: a clone (copy on write); pyarrow: immutable anyway
 
 
 class MemorySource(DataSource):
