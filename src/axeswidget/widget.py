@@ -464,7 +464,8 @@ class AxesWidget(anywidget.AnyWidget):
     def selected(self):
         """The selected rows: in the input's own type (pandas: original index kept); for an engine
         table, the engine's lazy filtered table (a DuckDB relation, a Spark DataFrame; nothing is read)."""
-        return self._source.selected(self.ranges)
+        with self._lock:  # the in-memory evaluator is shared with edits arriving from the page
+            return self._source.selected(self.ranges)
 
     def to_filter(self):
         """The selection as a narwhals expression: ``nw.from_native(table).filter(w.to_filter())``.
