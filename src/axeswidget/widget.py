@@ -464,6 +464,8 @@ class AxesWidget(anywidget.AnyWidget):
     def selected(self):
         """The selected rows: in the input's own type (pandas: original index kept); for an engine
         table, the engine's lazy filtered table (a DuckDB relation, a Spark DataFrame; nothing is read)."""
+        if getattr(self._source, "shares_connection", False):
+            self._pair_jobs.wait(120)  # the user's next query on this relation must not find it busy
         with self._lock:  # the in-memory evaluator is shared with edits arriving from the page
             return self._source.selected(self.ranges)
 

@@ -115,6 +115,11 @@ class DuckDBSource(SqlSource):
         source.files = path
         return source
 
+    @property
+    def shares_connection(self) -> bool:
+        """True when background queries run on the user's own connection (a relation the user made)."""
+        return self.files is None or self.connection is None
+
     def background(self) -> DuckDBSource:
         """The source for queries from another thread.
 
