@@ -32,6 +32,8 @@ export interface BrushHost {
   reorder(order: string[], final: boolean): void;
   /** the pointer rests at (x, y) away from the axes (hover a line) */
   hover(x: number, y: number): void;
+  /** what the pointer is over while no gesture runs (null: nothing), e.g. to name a header in full */
+  over?(hit: Hit | null): void;
   /** a click away from the axes: pin or unpin the hovered line */
   pin(): void;
   /** page position (relative to the canvas) to the logical layout's coordinates */
@@ -197,6 +199,7 @@ export function attachBrush(canvas: HTMLElement, host: BrushHost): () => void {
       const hit = hitTest(host, x, y);
       canvas.style.cursor = hit ? CURSOR[hit.kind] : "default";
       host.hover(hit ? -1 : x, hit ? -1 : y);
+      host.over?.(hit);
       return;
     }
     if (drag.hit.kind === "header") {

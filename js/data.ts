@@ -28,8 +28,17 @@ export interface AxisData {
   codes: Uint16Array;
 }
 
+/** The row index labels the kernel sends (optional): a range `start + step * position`, or the labels as text. */
+export interface RowIndex {
+  start?: number;
+  step?: number;
+  labels?: string[];
+}
+
 export interface Table {
   n: number;
+  /** row index labels, when the kernel sent them */
+  index: RowIndex | null;
   axes: AxisData[];
   byName: Map<string, AxisData>;
 }
@@ -52,6 +61,7 @@ interface RawColumn {
 
 export interface RawTable {
   n?: number;
+  index?: RowIndex;
   columns?: RawColumn[];
 }
 
@@ -83,7 +93,16 @@ export function decodeTable(raw: RawTable | null | undefined): Table {
     rest: c.rest,
     codes: asUint16(c.codes, c.name, n),
   }));
-  return { n, axes, byName: new Map(axes.map((a) => [a.name, a])) };
+  return { n, index: raw?.index ?? null, axes, byName: new Map(axes.map((a) => [a.name, a])) };
+}
+
+/** The index label of a row (its position in the table), or null when the kernel sent no index. */
+export function indexLabel(t: Table, row: number): string | null {
+  const ix = t.index;
+  if (!ix) return null;
+  if (ix.labels) return row < ix.labels.length ? ix.labels[row] : null;
+  if (ix.start !== undefined && ix.step !== undefined) return String(ix.start + ix.step * row);
+  return null;
 }
 
 /** Number of bands on a category axis (the shared "rest" band included). */

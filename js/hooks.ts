@@ -11,6 +11,8 @@ import { own, type Sel } from "./selection";
 export interface ViewHooks {
   redraw(): Promise<number>;
   layersAt(scale: number): Promise<HTMLCanvasElement[]>;
+  /** every text the overlay draws, with its box (logical CSS px) */
+  textBoxes?(): { text: string; font: string; x0: number; y0: number; x1: number; y1: number }[];
 }
 
 type Hooked = { __axw?: ViewHooks };

@@ -112,10 +112,9 @@ export function drawRows(ctx: CanvasRenderingContext2D, g: LineGeometry, rows: n
   }
 }
 
-/** The text of the values box: the row number, then one line per axis. */
-export function rowText(table: Table, layout: Layout, scales: AxisScale[], row: number, pinned: boolean): string {
-  const lines = [`row ${row}${pinned ? " (pinned)" : ""}`];
-  layout.slots.forEach((s, i) => {
+/** One row's value on every axis shown, as text (name, value), in drawing order. */
+export function rowValues(table: Table, layout: Layout, scales: AxisScale[], row: number): { name: string; value: string }[] {
+  return layout.slots.map((s, i) => {
     const axis = table.byName.get(s.name)!;
     const c = axis.codes[row];
     let text: string;
@@ -130,8 +129,14 @@ export function rowText(table: Table, layout: Layout, scales: AxisScale[], row: 
         text = formatValue(Number(v.toFixed(decimals)));
       } else text = scales[i].format(v);
     }
-    lines.push(`${s.name}: ${text}`);
+    return { name: s.name, value: text };
   });
+}
+
+/** The text of the values box: the row number, then one line per axis. */
+export function rowText(table: Table, layout: Layout, scales: AxisScale[], row: number, pinned: boolean): string {
+  const lines = [`row ${row}${pinned ? " (pinned)" : ""}`];
+  for (const e of rowValues(table, layout, scales, row)) lines.push(`${e.name}: ${e.value}`);
   return lines.join("\n");
 }
 

@@ -31,6 +31,11 @@ export const SIDE_HEADER = 128;
 const FOOTER = 42;
 const SIDE = 64;
 
+/** Room left of the first axis plus right of the last (vertical orientation), CSS px. */
+export function sideMargins(wideLeft: boolean): number {
+  return 2 * SIDE + (wideLeft ? 36 : 0);
+}
+
 /** `wideLeft`: the first axis carries labels on its left (a category axis) and needs more room. */
 export function computeLayout(width: number, height: number, order: string[], wideLeft = false, horizontal = false): Layout {
   const top = horizontal ? SIDE_HEADER : HEADER;

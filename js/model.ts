@@ -40,6 +40,8 @@ export interface Traits {
   histograms: boolean;
   /** both: row pinned on the page, -1 for none */
   pinned: number;
+  /** both: axes hidden from the page (never ones with a range) */
+  hidden: string[];
   orientation: "vertical" | "horizontal";
   /** set only in an exported page: there is no kernel behind it */
   _standalone?: boolean;

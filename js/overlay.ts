@@ -7,6 +7,7 @@ import type { Layout } from "./layout";
 import { AxisScale, formatValue } from "./scales";
 import { own, type AxisSel, type Sel } from "./selection";
 import type { Theme } from "./theme";
+import { thinLabels } from "./wide";
 
 export { readTheme, type Theme } from "./theme";
 
@@ -92,15 +93,17 @@ export function uprightText(ctx: CanvasRenderingContext2D, dpr: number): () => v
 }
 
 /** Text with a halo in the background colour, so it stays legible over lines. */
-function label(ctx: CanvasRenderingContext2D, text: string, x: number, y: number, theme: Theme) {
+function label(ctx: CanvasRenderingContext2D, text: string, x: number, y: number, theme: Theme, maxWidth?: number) {
+  // a text wider than maxWidth is drawn condensed to fit (numbers are never cut)
+  const fit = maxWidth !== undefined && ctx.measureText(text).width > maxWidth ? [Math.max(8, maxWidth)] : [];
   ctx.save();
   ctx.lineWidth = 3;
   ctx.lineJoin = "round";
   ctx.strokeStyle = theme.bg;
   ctx.globalAlpha = 0.85;
-  ctx.strokeText(text, x, y);
+  ctx.strokeText(text, x, y, ...fit);
   ctx.restore();
-  ctx.fillText(text, x, y);
+  ctx.fillText(text, x, y, ...fit);
 }
 
 /** Axis name in at most two lines (split at the "_" or space nearest the middle), then truncated. */
@@ -183,9 +186,20 @@ const KIND_MARK: Record<string, string> = {
   timedelta: "dur",
 };
 
-/** A category axis: a bar per band on the axis (picked ones wide and tinted), its label on the left. */
+/** Smallest distance (CSS px) between the centres of two category labels on one axis. */
+const LABEL_PX = 12;
+
+/**
+ * A category axis: a bar per band on the axis (picked ones wide and tinted), its label on the left.
+ * Labels drop where they would collide; the picked ones are always labelled, then the largest bands.
+ */
 function drawBands(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, s: AxisSel | undefined, x: number, i: number, gap: number, theme: Theme) {
   beside(ctx, layout, "before");
+  const centres = sc.bands.map((b) => (b.y0 + b.y1) / 2);
+  const counts = sc.axis.counts ?? [];
+  const labelled = new Set(
+    thinLabels(centres, layout.horizontal ? 9 : LABEL_PX, (c) => !!s?.bands.includes(c), (c) => counts[c] ?? sc.axis.rest?.rows ?? 0),
+  );
   sc.bands.forEach((b, code) => {
     const picked = s?.bands.includes(code);
     ctx.fillStyle = picked ? theme.band : theme.fg;
@@ -196,17 +210,18 @@ function drawBands(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale,
       ctx.strokeRect(x - 8, b.y0, 16, b.y1 - b.y0);
     }
     ctx.globalAlpha = 1;
-    if (b.y1 - b.y0 >= 9 || sc.bands.length <= 12) {
+    if (labelled.has(code)) {
       ctx.fillStyle = picked ? theme.fg : theme.muted;
       ctx.font = `${picked ? "600 " : ""}10px ${theme.font}`;
-      const room = layout.horizontal ? b.y1 - b.y0 + 40 : i === 0 ? x - 10 : Math.max(30, gap * 0.55);
+      // clear of the neighbour on the left and its histogram
+      const room = layout.horizontal ? b.y1 - b.y0 + 40 : i === 0 ? x - 10 : Math.max(30, Math.min(gap - 30, gap * 0.55));
       label(ctx, fitText(ctx, sc.bandLabel(code), room), x - 7, (b.y0 + b.y1) / 2, theme);
     }
   });
 }
 
 /** A numeric axis: the line, its ticks, and the counts of ±inf pinned to its ends. */
-function drawScale(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, x: number, theme: Theme) {
+function drawScale(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale, x: number, room: number, theme: Theme) {
   ctx.globalAlpha = 0.9;
   ctx.beginPath();
   ctx.moveTo(x, layout.top);
@@ -214,13 +229,19 @@ function drawScale(ctx: CanvasRenderingContext2D, layout: Layout, sc: AxisScale,
   ctx.stroke();
   beside(ctx, layout, "before");
   const ticks = sc.ticks();
+  // labels too wide for the room: a size smaller first, then drawn condensed (label's maxWidth)
+  if (!layout.horizontal && ticks.labels.some((l) => ctx.measureText(l).width > room)) ctx.font = `9px ${theme.font}`;
   ticks.values.forEach((v, t) => {
     const y = Math.round(sc.toPixel(v)) + 0.5;
     ctx.beginPath();
     ctx.moveTo(x - 4, y);
     ctx.lineTo(x, y);
     ctx.stroke();
-    label(ctx, ticks.labels[t], x - 6, y, theme);
+    // the label at the top end hangs below it, clear of the readouts in the header band
+    const hang = !layout.horizontal && y < layout.top + 6;
+    if (hang) ctx.textBaseline = "top";
+    label(ctx, ticks.labels[t], x - 6, hang ? Math.max(y, layout.top) - 2 : y, theme, layout.horizontal ? undefined : room);
+    if (hang) ctx.textBaseline = "middle";
   });
 }
 
@@ -334,7 +355,8 @@ export function drawOverlay(
     ctx.font = `10px ${theme.font}`;
     if (sc.categorical) drawBands(ctx, layout, sc, s, x, i, gap, theme);
     else {
-      drawScale(ctx, layout, sc, x, theme);
+      // tick labels stay clear of the neighbour on the left and its histogram
+      drawScale(ctx, layout, sc, x, i === 0 ? x - 8 : gap - 30, theme);
       if (hist && hist.histAll[i]) drawHistogram(ctx, sc, x, layout, hist.histAll[i], hist.histSelected[i], theme);
       drawInfinities(ctx, layout, sc, x, theme);
       drawRanges(ctx, layout, sc, s, x, theme);

@@ -3,12 +3,13 @@
 // hover and pin (hover.ts), legend (legend.ts), gestures (brush.ts) and test hooks (hooks.ts).
 
 import { PairCache, rankCorrelation } from "./association";
-import { attachBrush } from "./brush";
+import { AxisPicker } from "./axispicker";
+import { attachBrush, type Hit } from "./brush";
 import { colouring, hexToRgb, type Colouring } from "./colour";
 import { decodeTable, isCategorical, rowSpread, type Table } from "./data";
 import { attachHooks, publishCount, publishDrawn, publishLayout } from "./hooks";
-import { drawRows, nearestRow, placeTip, rowText, type LineGeometry } from "./hover";
-import { computeLayout, type Layout } from "./layout";
+import { drawRows, nearestRow, rowValues, type LineGeometry } from "./hover";
+import { computeLayout, sideMargins, type Layout } from "./layout";
 import { renderLegend } from "./legend";
 import type { WidgetModel } from "./model";
 import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, uprightText, type Theme } from "./overlay";
@@ -16,6 +17,8 @@ import { LinePainter, type Mode, type PaintJob, type PaintResult } from "./paint
 import type { AxisScale } from "./scales";
 import { ensureStyles } from "./style";
 import { KernelSync } from "./sync";
+import { fillBox, linesPerColumn, placeFloating, rowTitle, trimToFit } from "./valuesbox";
+import { chartWidth } from "./wide";
 import { DENSITY_ROWS, OPTIONS } from "./wire";
 
 /** Okabe–Ito vermillion: the pinned row */
@@ -32,7 +35,14 @@ export class View {
   private status = element("div", "axw-status");
   private legend = element("div", "axw-legend");
   private modeButton = element("button", "axw-mode");
+  /** scrolls the chart sideways when its axes do not fit at the minimum spacing */
+  private scroller = element("div", "axw-scroll");
   private stage = element("div", "axw-stage");
+  /** the pinned row's values, docked below the chart */
+  private dock = element("div", "axw-dock");
+  private picker: AxisPicker;
+  /** "axes 1–7 of 31 in view": shown while the chart scrolls sideways */
+  private scrollHint = element("span", "axw-scroll-hint");
   private linesCanvas = element("canvas", "axw-lines");
   private overlayCanvas = element("canvas", "axw-overlay");
   private progress = element("div", "axw-progress");
@@ -71,10 +81,31 @@ export class View {
       this.model.save_changes();
       this.invalidate(true);
     });
-    bar.append(this.status, this.legend, this.modeButton);
+    this.picker = new AxisPicker({
+      axes: () => this.allAxes(),
+      hidden: () => this.hiddenAxes(),
+      withRange: () => new Set(Object.keys(this.sync.sel)),
+      setHidden: (names) => {
+        this.model.set("hidden", names);
+        this.model.save_changes();
+        this.readOrder();
+        this.picker.refresh();
+        this.resize();
+      },
+    });
+    this.cleanup.push(() => this.picker.dispose());
+    bar.append(this.status, this.legend, this.scrollHint, this.picker.button, this.modeButton);
+    const onScroll = () => {
+      this.updateScrollHint();
+      if (this.hover >= 0) this.hoverAt(-1, -1); // the pointer no longer rests on that line
+    };
+    this.scroller.addEventListener("scroll", onScroll, { passive: true });
+    this.cleanup.push(() => this.scroller.removeEventListener("scroll", onScroll));
     this.progress.setAttribute("role", "progressbar");
     this.stage.append(this.linesCanvas, this.overlayCanvas, this.progress, this.tip);
-    this.root.append(bar, this.stage);
+    this.scroller.append(this.stage);
+    this.dock.hidden = true;
+    this.root.append(bar, this.picker.panel, this.scroller, this.dock);
     this.painter = new LinePainter(
       this.linesCanvas,
       (f) => {
@@ -83,7 +114,11 @@ export class View {
       },
       (r) => this.painted(r),
     );
-    attachHooks(this.root, { redraw: () => this.redrawTimed(), layersAt: (scale) => this.layersAt(scale) });
+    attachHooks(this.root, {
+      redraw: () => this.redrawTimed(),
+      layersAt: (scale) => this.layersAt(scale),
+      textBoxes: () => this.textBoxes(),
+    });
     host.appendChild(this.root);
     ensureStyles(this.root);
     this.theme = readTheme(host);
@@ -110,6 +145,11 @@ export class View {
     const handled = new Set(["height", "orientation", "color_by"]);
     for (const name of OPTIONS) if (!handled.has(name)) this.listen(`change:${name}`, () => this.invalidate(true));
     this.listen("change:pinned", () => this.invalidate(false));
+    this.listen("change:hidden", () => {
+      this.readOrder();
+      this.picker.refresh();
+      this.resize();
+    });
     this.listen("change:flipped", () => {
       this.layoutCache = null;
       this.invalidate(true);
@@ -125,10 +165,17 @@ export class View {
       hover: (x, y) => this.hoverAt(x, y),
       toLogical: (x, y) => (this.horizontal ? { x: y, y: x } : { x, y }),
       pin: () => this.pinHover(),
+      over: (hit) => this.overHit(hit),
       commit: (r) => this.sync.edit(r, true),
     });
     this.cleanup.push(detach);
-    const ro = new ResizeObserver(() => this.resize());
+    // only a change of width matters (the docked values box changes the height, not the chart)
+    let seenWidth = -1;
+    const ro = new ResizeObserver(() => {
+      if (this.root.clientWidth === seenWidth) return;
+      seenWidth = this.root.clientWidth;
+      this.resize();
+    });
     ro.observe(this.root);
     this.cleanup.push(() => ro.disconnect());
     this.resize();
@@ -149,10 +196,22 @@ export class View {
     this.readOrder();
   }
 
+  /** Every axis in drawing order, hidden ones included (the `order` trait, completed). */
+  private allAxes(): string[] {
+    const order = (this.model.get("order") ?? []).filter((n) => this.table.byName.has(n));
+    const rest = this.table.axes.map((a) => a.name).filter((n) => !order.includes(n));
+    return [...order, ...rest];
+  }
+
+  private hiddenAxes(): Set<string> {
+    return new Set(this.model.get("hidden") ?? []);
+  }
+
   private readOrder() {
-    const order = this.model.get("order") ?? [];
-    this.order = order.filter((n) => this.table.byName.has(n));
-    if (this.order.length === 0) this.order = this.table.axes.map((a) => a.name);
+    const hidden = this.hiddenAxes();
+    const all = this.allAxes();
+    this.order = all.filter((n) => !hidden.has(n));
+    if (this.order.length === 0) this.order = all;
     this.layoutCache = null;
   }
 
@@ -175,7 +234,11 @@ export class View {
     this.layoutCache = null;
     this.invalidate(true);
     if (final) {
-      this.model.set("order", order);
+      // `order` names every axis: the shown ones take the new order, hidden ones keep their places
+      const shown = new Set(order);
+      let next = 0;
+      const full = this.allAxes().map((n) => (shown.has(n) ? order[next++] : n));
+      this.model.set("order", full);
       this.model.save_changes();
     }
   }
@@ -210,9 +273,12 @@ export class View {
 
   /** Size of the drawing area on the page, in CSS pixels. */
   private physicalSize(): { w: number; h: number } {
-    const w = Math.max(200, this.root.clientWidth || 800);
+    const visible = Math.max(200, this.root.clientWidth || 800);
     const h = Math.max(160, this.model.get("height") ?? 380);
-    return this.horizontal ? { w, h: Math.max(h, 44 * this.order.length + 70) } : { w, h };
+    if (this.horizontal) return { w: visible, h: Math.max(h, 44 * this.order.length + 70) };
+    // a minimum spacing between axes: wider than the page when needed (it then scrolls sideways)
+    const first = this.table.byName.get(this.order[0]);
+    return { w: chartWidth(visible, this.order.length, sideMargins(!!first && isCategorical(first))), h };
   }
 
   /** The layout in logical coordinates (axes vertical); see Layout.horizontal. */
@@ -249,6 +315,9 @@ export class View {
     const { w: width, h: height } = this.physicalSize();
     const dpr = window.devicePixelRatio || 1;
     this.stage.style.height = `${height}px`;
+    this.stage.style.width = `${width}px`;
+    this.root.dataset.scrolls = String(width > this.scroller.clientWidth + 1);
+    this.updateScrollHint();
     for (const c of [this.linesCanvas, this.overlayCanvas]) {
       c.width = Math.round(width * dpr);
       c.height = Math.round(height * dpr);
@@ -312,6 +381,7 @@ export class View {
       restore = uprightText(ctx, dpr);
     } else ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
     const hist = this.model.get("histograms") === false ? null : this.hist;
+    this.picker.refresh(); // ranges may have changed which axes can be hidden
     drawOverlay(ctx, layout, this.scales(), this.sync.sel, this.theme, this.readouts(), hist);
     this.drawHighlight(ctx);
     restore();
@@ -395,6 +465,23 @@ export class View {
     this.invalidate(false);
   }
 
+  /** Which axes are in view when the chart is wider than the page (else no hint). */
+  private updateScrollHint() {
+    const x0 = this.scroller.scrollLeft;
+    const x1 = x0 + this.scroller.clientWidth;
+    const slots = this.horizontal ? [] : this.layout().slots;
+    const inView = slots.map((s, i) => (s.x >= x0 && s.x <= x1 ? i : -1)).filter((i) => i >= 0);
+    const all = inView.length === slots.length || inView.length === 0;
+    this.scrollHint.hidden = all;
+    if (!all) this.scrollHint.textContent = `axes ${inView[0] + 1}–${inView[inView.length - 1] + 1} of ${slots.length} in view ⇆`;
+  }
+
+  /** A header under the pointer: its full name and kind as the canvas's tooltip. */
+  private overHit(hit: Hit | null) {
+    const title = hit?.kind === "header" ? `${hit.axis} (${this.table.byName.get(hit.axis)?.kind ?? ""}) — click to flip, drag to move` : "";
+    if (this.overlayCanvas.title !== title) this.overlayCanvas.title = title;
+  }
+
   private pinHover() {
     const row = this.hover;
     const now = this.model.get("pinned") ?? -1;
@@ -410,10 +497,62 @@ export class View {
     const rows = [pinned, this.hover].filter((r, i, all) => r >= 0 && r < n && all.indexOf(r) === i);
     const layout = this.layout();
     drawRows(ctx, this.geometry(), rows, pinned, { fg: this.theme.fg, pinned: PINNED });
-    const show = this.hover >= 0 ? this.hover : pinned;
-    const text = show >= 0 && show < n ? rowText(this.table, layout, this.scales(), show, show === pinned) : null;
-    const pointer = layout.horizontal ? { x: this.pointer.y, y: this.pointer.x } : this.pointer;
-    placeTip(this.tip, text, pointer, this.physicalSize());
+    // the hovered row floats beside the pointer; the pinned row docks below the chart
+    const size = this.physicalSize();
+    if (this.hover >= 0 && this.hover < n) {
+      this.tip.style.display = "block";
+      fillBox(this.tip, rowTitle(this.table, this.hover, this.hover === pinned), rowValues(this.table, layout, this.scales(), this.hover), linesPerColumn(size.h - 8));
+      const pointer = layout.horizontal ? { x: this.pointer.y, y: this.pointer.x } : this.pointer;
+      const x0 = this.scroller.scrollLeft;
+      const visible = { x0, x1: x0 + (this.scroller.clientWidth || size.w), h: size.h };
+      placeFloating(this.tip, pointer, visible);
+      if (trimToFit(this.tip)) placeFloating(this.tip, pointer, visible);
+    } else this.tip.style.display = "none";
+    const dockRow = pinned >= 0 && pinned < n ? pinned : -1;
+    if (dockRow < 0) this.dock.hidden = true;
+    else if (this.dock.hidden || this.dock.dataset.row !== String(dockRow) || this.dock.dataset.layout !== String(this.order.length)) {
+      this.dock.hidden = false;
+      this.dock.dataset.row = String(dockRow);
+      this.dock.dataset.layout = String(this.order.length);
+      fillBox(this.dock, rowTitle(this.table, dockRow, true), rowValues(this.table, layout, this.scales(), dockRow), 0);
+      const unpin = element("button", "axw-unpin");
+      unpin.type = "button";
+      unpin.textContent = "unpin";
+      unpin.addEventListener("click", () => {
+        this.model.set("pinned", -1);
+        this.model.save_changes();
+        this.invalidate(false);
+      });
+      this.dock.firstElementChild?.append(unpin);
+    }
+  }
+
+  /**
+   * Test hook: every text the overlay draws, with its box (logical CSS px), from a fresh overlay
+   * drawing on a scratch canvas (vertical orientation).
+   */
+  textBoxes(): { text: string; font: string; x0: number; y0: number; x1: number; y1: number }[] {
+    const { w, h } = this.physicalSize();
+    const canvas = document.createElement("canvas");
+    canvas.width = w;
+    canvas.height = h;
+    const ctx = canvas.getContext("2d")!;
+    const boxes: { text: string; font: string; x0: number; y0: number; x1: number; y1: number }[] = [];
+    const fill = ctx.fillText.bind(ctx);
+    ctx.fillText = (text: string, x: number, y: number, maxWidth?: number) => {
+      const m = ctx.measureText(text);
+      const width = maxWidth !== undefined ? Math.min(maxWidth, m.width) : m.width;
+      const t = ctx.getTransform();
+      const align = ctx.textAlign;
+      const left = align === "center" ? x - width / 2 : align === "right" || align === "end" ? x - width : x;
+      const px = t.a * left + t.e;
+      const py = t.d * y + t.f;
+      boxes.push({ text, font: ctx.font, x0: px, x1: px + width * t.a, y0: py - m.actualBoundingBoxAscent * t.d, y1: py + m.actualBoundingBoxDescent * t.d });
+      if (maxWidth === undefined) fill(text, x, y);
+      else fill(text, x, y, maxWidth);
+    };
+    this.paintOverlay(canvas, 1);
+    return boxes;
   }
 
   private updateStatus(layout: Layout) {

@@ -15,7 +15,7 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from axeswidget import density, selection, wire
+from axeswidget import density, evaluate, selection, wire
 from axeswidget.encode import CODE_MAX, CODE_MISSING, encode_column, quantise
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -160,7 +160,7 @@ def test_page_preview_contains_the_exact_selection(page, data, log, picks):
         # reference: pandas.Series.between on the exact values; an open end takes in ±inf on its side
         ref = series.between(-np.inf if lo is None else lo, np.inf if hi is None else hi).to_numpy()
         got = np.array(got, dtype=bool)
-        kernel = selection.axis_mask(col, selection.normalise_items([[lo, hi]], col))
+        kernel = evaluate.axis_mask(col, selection.normalise_items([[lo, hi]], col))
         assert np.array_equal(kernel, ref)
         # the preview takes in every exactly selected row ...
         assert not (ref & ~got).any(), (lo, hi, values[ref & ~got])
@@ -197,7 +197,7 @@ def test_density_bins_match_python(page, bins):
 @given(st.lists(st.booleans(), min_size=0, max_size=200))
 def test_pack_matches_unpack(page, bits):
     mask = np.array(bits, dtype=bool)
-    packed = selection.pack(mask)
+    packed = evaluate.pack(mask)
     got = page("unpack", bits=base64.b64encode(packed).decode(), n=len(mask))
     assert np.array_equal(np.array(got, dtype=bool), mask)
 

@@ -163,9 +163,11 @@ def test_engine_types_match_pandas():
     )
     assert source.count(ranges) == int(want.sum()) > 0
     # the in-memory source over the same rows draws the same codes
-    memory = MemorySource(frame.assign(gap=gap, d=day, money=frame["money"].astype(float)))
+    # "i" (1..399, all distinct) reads as an identifier: named in axes= so that memory draws it too
+    names = ["i", "m", "ts", "gap", "d", "money", "flag"]
+    memory = MemorySource(frame.assign(gap=gap, d=day, money=frame["money"].astype(float)), axes=names)
     codes = source.codes()
-    for name in ("i", "m", "ts", "gap", "d", "money", "flag"):
+    for name in names:
         np.testing.assert_array_equal(codes[name], memory.columns[name].codes, err_msg=name)
 
 

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -84,3 +86,12 @@ def test_integer_columns_with_few_values_are_discrete_with_their_values_as_ticks
     df = pd.DataFrame({"d": np.array([180, 200, 224, 250, 200], dtype=np.int64), "big": np.arange(5) * 1000})
     cols = encode_frame(df)
     assert cols["d"].kind == "integer" and cols["d"].discrete == [180, 200, 224, 250]
+
+
+def test_a_span_of_subnormal_numbers_is_quantised_in_order():
+    # found by the selection property test: the halves formula turned 0 * inf into NaN codes
+    values = np.array([0.0, 5e-324, 1e-323, np.nan])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # no "invalid value" RuntimeWarning
+        codes = quantise(values, 0.0, 1e-323)
+    assert codes.tolist() == [0, CODE_MAX // 2, CODE_MAX, CODE_MISSING]  # 5e-324 is half of 1e-323

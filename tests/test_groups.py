@@ -168,16 +168,16 @@ def test_callbacks_are_throttled_while_dragging_and_always_get_the_release(fleet
 
 
 def test_incremental_update_touches_one_axis(fleet, monkeypatch):
-    from axeswidget import selection
+    from axeswidget import evaluate
 
     w = aw.AxesWidget(fleet)
     w.ranges = {
         n: [[-1e9, 1e9]] for n in ["flow_m3h", "head_m", "power_kw", "efficiency_pct", "vibration_mm_s"]
     }
     touched = []
-    real = selection.axis_mask
+    real = evaluate.axis_mask
     monkeypatch.setattr(
-        selection, "axis_mask", lambda col, items: touched.append(col.name) or real(col, items)
+        evaluate, "axis_mask", lambda col, items: touched.append(col.name) or real(col, items)
     )
     r = dict(w.ranges)
     r["head_m"] = [[10.0, 30.0]]

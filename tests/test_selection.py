@@ -11,7 +11,8 @@ from hypothesis import strategies as st
 
 import axeswidget as aw
 from axeswidget.encode import encode_frame
-from axeswidget.selection import MaskEvaluator, normalise
+from axeswidget.evaluate import MaskEvaluator
+from axeswidget.selection import normalise
 
 
 @pytest.fixture
@@ -55,13 +56,13 @@ def test_ends_are_inclusive_on_exact_float64_values():
 
 
 def test_incremental_update_recomputes_only_the_changed_axis(fleet, monkeypatch):
-    from axeswidget import selection
+    from axeswidget import evaluate
 
     w = aw.AxesWidget(fleet, axes=aw.demo.NUMERIC_AXES)
     w.ranges = {"flow_m3h": [[30, 90]], "head_m": [[10, 40]]}
     calls = []
-    real = selection.axis_mask
-    monkeypatch.setattr(selection, "axis_mask", lambda v, s: calls.append(s) or real(v, s))
+    real = evaluate.axis_mask
+    monkeypatch.setattr(evaluate, "axis_mask", lambda v, s: calls.append(s) or real(v, s))
     w.ranges = {"flow_m3h": [[30, 90]], "head_m": [[12, 40]]}
     assert calls == [[[12.0, 40.0]]]
     ref = fleet["flow_m3h"].between(30, 90) & fleet["head_m"].between(12, 40)  # reference: pandas between

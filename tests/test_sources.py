@@ -15,7 +15,8 @@ import pytest
 
 from axeswidget import density
 from axeswidget.encode import encode_frame
-from axeswidget.selection import MaskEvaluator, normalise
+from axeswidget.evaluate import MaskEvaluator
+from axeswidget.selection import normalise
 from axeswidget.sources import MemorySource, NotInMemoryError, SourceError, axis_bins, open_source
 from tests.source_reference import ORDER, SELECTION, check_against_pandas, pump_table, reference_mask
 
@@ -51,7 +52,7 @@ def test_memory_source_is_todays_code(table):
 
 def test_category_bins_are_bands_or_split_evenly():
     frame = pd.DataFrame({"label": [f"L{i:03d}" for i in range(80)] + [None]})
-    col = encode_frame(frame)["label"]
+    col = encode_frame(frame, ["label"])["label"]  # 80 distinct labels read as identifiers: named
     assert axis_bins(col, col.codes, 128).tolist() == list(range(61)) + [60] * 19 + [128]
     # 61 bands in 8 bins: band b -> b * 8 // 61 (checked by hand for b = 0, 7, 8, 60)
     small = axis_bins(col, col.codes, 8)

@@ -8,6 +8,7 @@ One rule for every kind of axis, used both by a data swap (``w.data = ...``) and
 * a range that selects nothing and lies outside the new data is dropped; an end that reaches beyond
   the new data where the data shrank (the old data went further) is clipped to the new data's edge,
   only when that picks exactly the same rows;
+* a hidden axis that is gone leaves ``hidden`` (every axis hidden: all are shown again);
 * a label that no longer exists is dropped; a kept selection that loses any part is dropped whole;
 * a log scale on an axis that is no longer positive numbers, ``color_by``/``bundle_by`` on an axis
   that no longer fits, and a pinned row beyond the new table are reset.
@@ -21,7 +22,8 @@ import numpy as np
 import pandas as pd
 
 from .encode import Column
-from .selection import SelectionError, _end_key, axis_mask, normalise_items
+from .evaluate import axis_mask
+from .selection import SelectionError, _end_key, normalise_items
 
 _LABELS = ("category", "boolean")
 
@@ -159,6 +161,13 @@ def carry_over(view: dict, old_columns: dict, new_columns: dict, n_rows: int, ro
     order = [a for a in view["order"] if a in new_columns]
     out["order"] = order + [a for a in new_columns if a not in order]
     out["flipped"] = [a for a in view["flipped"] if a in new_columns]
+    hidden = view.get("hidden", [])
+    out["hidden"] = [a for a in hidden if a in new_columns]
+    if len(out["hidden"]) < len(hidden):
+        notes.append("hidden axes gone: " + ", ".join(repr(a) for a in hidden if a not in new_columns))
+    if out["hidden"] and len(out["hidden"]) == len(new_columns):
+        notes.append("every axis left was hidden: all are shown again")
+        out["hidden"] = []
 
     ranges = {}
     for axis, items in view["ranges"].items():

@@ -11,16 +11,22 @@ Two things come out of every column:
   column's finite domain onto ``0..CODE_MAX``; category axes send the index of the row's band;
   ``CODE_MISSING`` marks a missing value. That is 2 bytes per cell.
 
-Column kinds: ``number`` (continuous), ``integer`` (few distinct integers), ``category`` (labels;
+Column kinds: ``number`` (continuous), ``integer`` (few distinct integers, also whole-number floats
+such as 0.0/1.0/2.0 class codes), ``category`` (labels;
 pandas Categorical order kept, otherwise most frequent first), ``boolean``, ``datetime`` (tz-aware
 included) and ``timedelta``. Missing values (NaN, None, pd.NA, NaT) sit in a lane of their own.
 ``±inf`` are drawn pinned to the ends of their axis (the axis shows how many) and are selected by a
 range whose end is open (``None``) on that side.
+
+Roles: when the axes are not named, identifier-like columns (integers running nearly through their span
+or named like an id, and text, where nearly every value differs) and free text are skipped with the
+other undrawable columns in one warning; named in ``axes=`` they are drawn.
 """
 
 from __future__ import annotations
 
 import math
+import re
 import warnings
 from dataclasses import dataclass, field
 
@@ -33,12 +39,26 @@ from .wire import CATEGORY_BAND_LIMIT, CODE_MAX, CODE_MISSING
 
 #: integer columns with at most this many distinct values are drawn as discrete axes
 INTEGER_DISCRETE_LIMIT = 40
+#: whole-number float columns with at most this many distinct values are drawn as discrete axes
+FLOAT_DISCRETE_LIMIT = 20
+#: identifier-like: more than this share of the present values distinct, in more than ID_MIN_ROWS rows
+ID_DISTINCT_SHARE = 0.95
+ID_MIN_ROWS = 50
+#: column names that read as identifiers ("id", "user_id", "PassengerId", "row index", "key", ...)
+ID_NAME = re.compile(
+    r"(?:^|[^A-Za-z0-9])(?i:id|ids|uuid|guid|key|index|idx|no)$"  # "id", "user_id", "row index", "Nr. no"
+    r"|[a-z0-9](?:Id|ID|Key|Index|UUID|No)$"  # camelCase: "PassengerId", "orderNo"
+)
 #: object columns with at most this many distinct labels are categories; more are skipped
 CATEGORY_LIMIT = 100_000
 
 
 class ColumnError(ValueError):
     """A column cannot be used as an axis; the message names the column and the problem."""
+
+
+class NotGuessed(ColumnError):
+    """A column left out when the axes are not named (identifiers, free text); naming it draws it."""
 
 
 @dataclass
@@ -234,9 +254,13 @@ def quantise(values: np.ndarray, lo: float, hi: float, log: bool = False, missin
     else:
         lo_axis, hi_axis = lo, hi
     half_span = hi_axis * 0.5 - lo_axis * 0.5
-    scale, offset = (CODE_MAX / half_span, lo_axis * 0.5) if half_span > 0 else (0.0, 0.0)
+    halves = half_span > 0 and math.isfinite(CODE_MAX / half_span)
+    # a span of subnormal numbers: halving would lose them, and the span cannot overflow
+    subnormal = half_span > 0 and not halves
+    scale, offset = (CODE_MAX / half_span, lo_axis * 0.5) if halves else (0.0, 0.0)
     # block by block (the temporaries stay in the CPU cache); per value the same float64 steps as
-    # rint((clip(v, lo, hi) * 0.5 - lo * 0.5) * (CODE_MAX / half_span))
+    # rint((clip(v, lo, hi) * 0.5 - lo * 0.5) * (CODE_MAX / half_span)), or for a subnormal span
+    # rint((v - lo) / (hi - lo) * CODE_MAX)
     block = 1 << 16
     for start in range(0, values.shape[0], block):
         stop = min(values.shape[0], start + block)
@@ -248,10 +272,15 @@ def quantise(values: np.ndarray, lo: float, hi: float, log: bool = False, missin
         if log:
             with np.errstate(invalid="ignore"):  # NaN rows stay NaN and are marked missing below
                 np.log(v, out=v)
-        if half_span > 0:
+        if halves:
             v *= 0.5
             v -= offset
             v *= scale
+            np.rint(v, out=v)
+        elif subnormal:
+            v -= lo_axis
+            v /= hi_axis - lo_axis
+            v *= CODE_MAX
             np.rint(v, out=v)
         else:
             v[:] = 0.0
@@ -286,7 +315,7 @@ def _is_mixed_or_nested(series: pd.Series) -> str | None:
     return "mixes value types (" + ", ".join(sorted(t.__name__ for t in types)) + ")"
 
 
-def _category_column(name, label, series: pd.Series) -> Column:
+def _category_column(name, label, series: pd.Series, named: bool = True) -> Column:
     missing = series.isna().to_numpy(dtype=bool)
     if isinstance(series.dtype, pd.CategoricalDtype):
         cats = list(series.cat.categories)
@@ -311,6 +340,8 @@ def _category_column(name, label, series: pd.Series) -> Column:
         uniq, inverse, counts = np.unique(
             values[present].astype(str), return_inverse=True, return_counts=True
         )
+        if not named:
+            _refuse_free_text(name, values[present], uniq.size)
         if uniq.size > CATEGORY_LIMIT:
             raise ColumnError(
                 f"column {name!r} has {uniq.size} distinct labels; at most {CATEGORY_LIMIT} are drawn"
@@ -371,8 +402,67 @@ def _as_ns(raw: np.ndarray, missing: np.ndarray, name: str, what: str) -> np.nda
     return np.where(missing, np.iinfo(np.int64).min, ints * factor)
 
 
-def encode_column(label, series: pd.Series, name: str | None = None) -> Column:
-    """Describe and encode one column; raise ColumnError naming it if it cannot be an axis."""
+def _refuse_free_text(name: str, present: np.ndarray, distinct: int) -> None:
+    """NotGuessed for text that reads as identifiers or free text (checked only for unnamed axes)."""
+    n = present.size
+    if n <= ID_MIN_ROWS or distinct == 0:
+        return
+    if distinct > ID_DISTINCT_SHARE * n:
+        raise NotGuessed(
+            f"column {name!r} looks like identifiers or free text ({distinct} of {n} values distinct); "
+            "name it in axes= to draw it"
+        )
+    if distinct > 0.5 * n:
+        lengths = np.fromiter((len(str(v)) for v in present), dtype=np.int64, count=n)
+        if np.median(lengths) >= FREE_TEXT_LENGTH:
+            raise NotGuessed(
+                f"column {name!r} looks like free text ({distinct} of {n} values distinct, median length "
+                f"{int(np.median(lengths))} characters); name it in axes= to draw it"
+            )
+
+
+#: text columns with more than half their values distinct and a median length of at least this many
+#: characters are free text (skipped unless named)
+FREE_TEXT_LENGTH = 30
+
+
+def _refuse_identifier(name: str, present: np.ndarray) -> None:
+    """NotGuessed for integers that read as identifiers: nearly all distinct, and either nearly filling
+    their span (row numbers, serial ids) or named like an id."""
+    n = present.size
+    if n <= ID_MIN_ROWS:
+        return
+    uniq = np.unique(present)
+    if uniq.size <= ID_DISTINCT_SHARE * n:
+        return
+    span = int(uniq[-1]) - int(uniq[0]) + 1
+    if span <= 2 * uniq.size or ID_NAME.search(name):
+        raise NotGuessed(
+            f"column {name!r} looks like an identifier ({uniq.size} of {n} values distinct"
+            + (f", {uniq[0]}..{uniq[-1]}" if span <= 2 * uniq.size else "")
+            + "); name it in axes= to draw it"
+        )
+
+
+def _whole_floats(values: np.ndarray, missing: np.ndarray) -> list[int] | None:
+    """The distinct values of a float column holding few whole numbers (class codes), else None."""
+    present = values[~missing]
+    if not present.size or not np.isfinite(present).all() or np.abs(present).max() > 2**53:
+        return None
+    if not (present == np.round(present)).all():
+        return None
+    uniq = np.unique(present)
+    if uniq.size > FLOAT_DISCRETE_LIMIT:
+        return None
+    return [int(v) for v in uniq]
+
+
+def encode_column(label, series: pd.Series, name: str | None = None, named: bool = True) -> Column:
+    """Describe and encode one column; raise ColumnError naming it if it cannot be an axis.
+
+    ``named=False`` (the axes were not named) also refuses identifier-like and free-text columns
+    (:class:`NotGuessed`).
+    """
     name = display_name(label) if name is None else name
     problem = name_problem(name)
     if problem:
@@ -429,11 +519,17 @@ def encode_column(label, series: pd.Series, name: str | None = None) -> Column:
                 uniq = np.unique(exact[~missing])
                 if uniq.size <= INTEGER_DISCRETE_LIMIT:
                     col.kind, col.discrete = "integer", [int(v) for v in uniq]
+                elif not named:
+                    _refuse_identifier(name, exact[~missing])
+        elif pd.api.types.is_float_dtype(dtype):
+            whole = _whole_floats(values, missing)
+            if whole is not None:  # 0.0/1.0/2.0 codes (NaN allowed): a discrete axis, ticks on the values
+                col.kind, col.discrete = "integer", whole
     elif pd.api.types.is_object_dtype(dtype) or pd.api.types.is_string_dtype(dtype):
         why = _is_mixed_or_nested(series) if pd.api.types.is_object_dtype(dtype) else None
         if why:
             raise ColumnError(f"column {name!r} {why}, which cannot be drawn on an axis")
-        col = _category_column(name, label, series)
+        col = _category_column(name, label, series, named)
     else:
         raise ColumnError(f"column {name!r} has dtype {dtype}, which cannot be drawn on an axis")
     col.encode()
@@ -458,7 +554,7 @@ def encode_frame(frame: pd.DataFrame, axes=None) -> dict[str, Column]:
                     skipped.append(f"{name!r} ({_twice(name, names)})")
                 continue
             try:
-                out[name] = encode_column(label, frame.iloc[:, i], name)
+                out[name] = encode_column(label, frame.iloc[:, i], name, named=False)
             except ColumnError as err:
                 skipped.append(f"{name!r} ({str(err).split(' ', 2)[-1]})")
         if not out:
@@ -499,6 +595,19 @@ def _twice(name: str, names: list[str]) -> str:
     return "the name appears more than once"
 
 
+#: up to this many rows the index labels of a non-range index travel as text (above: positions only)
+INDEX_LABELS_MAX = 200_000
+
+
+def index_spec(index) -> dict | None:
+    """The rows' index labels for the page's values box: a range as start/step, else text labels."""
+    if isinstance(index, pd.RangeIndex):
+        return {"start": int(index.start), "step": int(index.step)}
+    if len(index) > INDEX_LABELS_MAX:
+        return None
+    return {"labels": [str(v) for v in index]}
+
+
 def table_trait(
     columns: dict[str, Column], n: int, codes: dict | None = None, total: int | None = None
 ) -> dict:
@@ -521,3 +630,9 @@ def table_trait(
         "sampled": sampled,
         "columns": specs,
     }
+
+
+def with_index(table: dict, index) -> dict:
+    """The ``table`` trait with the rows' index labels added under ``index`` (optional for the page)."""
+    spec = index_spec(index)
+    return table if spec is None else {**table, "index": spec}

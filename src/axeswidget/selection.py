@@ -3,6 +3,9 @@
 A selection is ``{axis name: [item, ...]}``. An item is
 
 * ``[lo, hi]`` — a range on a number, integer, datetime or timedelta axis, both ends inclusive.
+  On an ``integer`` (discrete) axis a single value ``v`` stands for ``[v, v]``: ``{"target": 1}``,
+  ``{"target": [1]}`` and ``{"target": [0, [2, 3]]}`` are accepted (two bare numbers stay the range
+  shorthand ``[lo, hi]``).
   ``None`` as an end leaves that side open (and takes in ``±inf`` values pinned at that end).
   Datetime ends are ISO 8601 strings (timezone offset included for tz-aware axes); timedelta ends
   are seconds;
@@ -13,15 +16,15 @@ A selection is ``{axis name: [item, ...]}``. An item is
 
 Items on one axis combine with OR, axes combine with AND. An axis without items does not filter.
 
-Evaluation is kept apart from the description: :class:`MaskEvaluator` turns a selection into a boolean
-mask over the in-memory columns and recomputes only the axes whose items changed.
+Evaluation is kept apart from the description: :mod:`axeswidget.evaluate` turns a selection into a
+boolean mask over the in-memory columns; :mod:`axeswidget.query` writes it as a pandas query;
+:mod:`axeswidget.pageround` tidies range ends dragged on the page.
 """
 
 from __future__ import annotations
 
 import datetime as _dt
 import math
-import unicodedata
 from collections.abc import Mapping
 from numbers import Real
 
@@ -61,6 +64,11 @@ def _number(value, axis: str, exact_int: bool = False) -> float | int | None:
     if exact_int and isinstance(value, int | np.integer) and not math.isinf(out):
         return int(value)  # compared exactly with the column's integers (float64 stops at 2**53)
     return out
+
+
+def _is_value(item) -> bool:
+    """A single number (not a bool, not a pair): one value on a discrete axis."""
+    return isinstance(item, Real | np.number) and not isinstance(item, bool | np.bool_ | np.timedelta64)
 
 
 def _short(value) -> str:
@@ -167,6 +175,9 @@ def normalise_items(items, col: Column) -> list:
     axis = col.name
     if items is None:
         return []
+    discrete = col.kind == "integer"
+    if discrete and _is_value(items):
+        items = [items]  # {"target": 1}: one value on a discrete axis
     if isinstance(items, str) or not isinstance(items, list | tuple | np.ndarray):
         raise SelectionError(f"selection on {axis!r}: expected a list of items, got {items!r}")
     items = list(items)
@@ -174,6 +185,8 @@ def normalise_items(items, col: Column) -> list:
     if not categorical and len(items) == 2 and not any(_is_pair(i) for i in items):
         if any(i is not None for i in items):  # [lo, hi] shorthand for one range
             items = [items]
+    if discrete:  # single values on a discrete axis: the range [v, v]
+        items = [[i, i] if _is_value(i) else i for i in items]
     spans, picked, lane = [], set(), False
     for item in items:
         if item is None:
@@ -202,7 +215,8 @@ def normalise_items(items, col: Column) -> list:
             picked.add(label)
         else:
             if not _is_pair(item) or len(item) != 2:
-                raise SelectionError(f"range on {axis!r}: expected a pair [lo, hi], got {item!r}")
+                hint = " (single values are taken on integer axes only)" if _is_value(item) else ""
+                raise SelectionError(f"range on {axis!r}: expected a pair [lo, hi], got {item!r}{hint}")
             lo, hi = _end(item[0], col, "lo"), _end(item[1], col, "hi")
             if lo is not None and hi is not None and _end_key(lo, col) > _end_key(hi, col):
                 raise SelectionError(f"range on {axis!r}: lo {lo!r} is greater than hi {hi!r}")
@@ -237,270 +251,3 @@ def normalise(ranges, columns: Mapping[str, Column]) -> Ranges:
         if clean:
             out[axis] = clean
     return out
-
-
-def _exact_end(value, col: Column):
-    if value is None:
-        return None
-    if col.kind == "datetime":
-        return pd.Timestamp(value).as_unit("ns").value  # int64 ns since the epoch (UTC for tz-aware columns)
-    if col.kind == "timedelta":
-        return int(round(value * 1e9))
-    return value
-
-
-def _integer_hit(col: Column, lo, hi) -> np.ndarray:
-    """Rows of an integer column within [lo, hi], compared in the column's own integer type."""
-    info = np.iinfo(col.exact.dtype)
-    exact = col.exact
-    hit = None
-    if lo is not None:
-        lo = math.ceil(lo)  # exact for floats and ints alike
-        if lo > info.max:
-            return np.zeros(len(exact), dtype=bool)
-        if lo > info.min:
-            hit = exact >= exact.dtype.type(lo)
-    if hi is not None:
-        hi = math.floor(hi)
-        if hi < info.min:
-            return np.zeros(len(exact), dtype=bool)
-        if hi < info.max:
-            upper = exact <= exact.dtype.type(hi)
-            hit = upper if hit is None else np.logical_and(hit, upper, out=hit)
-    present = ~col.missing
-    return present if hit is None else np.logical_and(hit, present, out=hit)
-
-
-def _range_hit(col: Column, lo, hi) -> np.ndarray:
-    """Rows within one range [lo, hi] (None = open end) on a number, date or duration axis."""
-    if col.exact is not None:
-        return _integer_hit(col, lo, hi)
-    v = col.values
-    if lo is None and hi is None:
-        return ~col.missing
-    if lo is None:
-        hit = v <= hi
-    else:
-        hit = v >= lo
-        if hi is not None:
-            np.logical_and(hit, v <= hi, out=hit)
-    if col.kind in ("datetime", "timedelta") and lo is None:
-        np.logical_and(hit, ~col.missing, out=hit)  # NaT is stored as the smallest int64
-    return hit
-
-
-def axis_mask(col: Column, items: list) -> np.ndarray:
-    """Rows picked by any of the items on one axis, computed on the exact values."""
-    n = len(col.missing)
-    if col.kind in ("category", "boolean"):
-        lut = np.zeros(len(col.labels) + 1, dtype=bool)
-        index = {lab: i for i, lab in enumerate(col.labels)}
-        for item in items:
-            lut[0 if item is None else index[item] + 1] = True
-        return lut[col.label_codes + 1]
-    if len(items) == 1 and items[0] is not None:  # the common case: one range, no extra pass
-        return _range_hit(col, _exact_end(items[0][0], col), _exact_end(items[0][1], col))
-    mask = np.zeros(n, dtype=bool)
-    for item in items:
-        if item is None:
-            mask |= col.missing
-        else:
-            mask |= _range_hit(col, _exact_end(item[0], col), _exact_end(item[1], col))
-    return mask
-
-
-class MaskEvaluator:
-    """Exact, incremental evaluation of a selection over in-memory columns."""
-
-    def __init__(self, columns: Mapping[str, Column], n: int):
-        self.columns = columns
-        self.n = n
-        self.ranges: Ranges = {}
-        self._parts: dict[str, np.ndarray] = {}
-        self.mask = np.ones(n, dtype=bool)
-        self.mask.flags.writeable = False
-        #: False until the first update: the mask above is a placeholder
-        self.evaluated = False
-
-    def prepare(self, ranges: Ranges) -> None:
-        """Evaluate a selection without applying it (so a failure leaves everything as it was).
-
-        The next :meth:`update` with the same selection reuses the result.
-        """
-        parts = {}
-        for axis, items in ranges.items():
-            if self.ranges.get(axis) == items and axis in self._parts:
-                parts[axis] = self._parts[axis]
-            else:
-                try:
-                    parts[axis] = axis_mask(self.columns[axis], items)
-                except (ArithmeticError, TypeError, ValueError) as err:
-                    raise SelectionError(
-                        f"selection on {axis!r} cannot be evaluated: {type(err).__name__}: {err}"
-                    ) from None
-        self._pending = ({k: list(v) for k, v in ranges.items()}, parts)
-
-    def update(self, ranges: Ranges) -> np.ndarray:
-        """Apply a normalised selection; only axes whose items changed are recomputed."""
-        pending = getattr(self, "_pending", None)
-        self._pending = None
-        if pending is not None and pending[0] == ranges:
-            self._parts = dict(pending[1])
-        else:
-            for axis in list(self._parts):
-                if axis not in ranges:
-                    del self._parts[axis]
-            for axis, items in ranges.items():
-                if self.ranges.get(axis) != items or axis not in self._parts:
-                    self._parts[axis] = axis_mask(self.columns[axis], items)
-        changed = [a for a in ranges if self.ranges.get(a) != ranges[a]]
-        self.ranges = {k: list(v) for k, v in ranges.items()}
-        mask = self._combine(changed)
-        mask.flags.writeable = False
-        self.mask = mask
-        self.evaluated = True
-        return mask
-
-    def _combine(self, changed: list[str]) -> np.ndarray:
-        """AND of the per-axis parts. While one axis is dragged, the AND of the others is kept, so
-        each update costs one AND instead of one per brushed axis."""
-        parts = self._parts
-        if not parts:
-            self._rest = None
-            return np.ones(self.n, dtype=bool)
-        if len(parts) == 1:
-            self._rest = None
-            return next(iter(parts.values())).copy()
-        rest = getattr(self, "_rest", None)
-        if len(changed) == 1:
-            axis = changed[0]
-            others = tuple(sorted(a for a in parts if a != axis))
-            if rest is None or rest[0] != axis or rest[1] != others:
-                it = iter(parts[a] for a in others)
-                acc = next(it).copy()
-                for part in it:
-                    acc &= part
-                rest = self._rest = (axis, others, acc)
-            return np.logical_and(rest[2], parts[axis])
-        self._rest = None
-        it = iter(parts.values())
-        mask = np.logical_and(next(it), next(it))
-        for part in it:
-            mask &= part
-        return mask
-
-
-def pack(mask: np.ndarray) -> bytes:
-    """Bit-pack a mask for the front end: bit i of byte i // 8 (little bit order) is row i."""
-    return np.packbits(mask, bitorder="little").tobytes()
-
-
-# -- selection as code --------------------------------------------------------------------------------
-def _quote(col: Column, others=()) -> str:
-    """The column's label quoted for DataFrame.query, or SelectionError when query cannot name it.
-
-    ``others`` are all column labels of the table: the name is tried on a one-row table with those
-    labels, so a name pandas would read as another column (or not at all) is refused.
-    """
-    label = col.source
-    if not isinstance(label, str):
-        raise SelectionError(
-            f"column {col.name!r}: its label {label!r} is not a string, so DataFrame.query cannot refer to it"
-        )
-    if label in ("inf", "Inf"):
-        raise SelectionError(
-            f"column {label!r}: DataFrame.query reads this name as infinity; rename the column"
-        )
-    if "`" in label:
-        raise SelectionError(f"column {label!r}: a name with a backtick cannot be quoted in DataFrame.query")
-    odd = [ch for ch in label if unicodedata.category(ch)[0] in "CMZ" and ch != " "]
-    if odd or not label.strip():
-        what = f"the character {odd[0]!r}" if odd else "nothing but spaces"
-        raise SelectionError(
-            f"column {label!r}: the name holds {what}, which DataFrame.query cannot name; rename the column"
-        )
-    labels = list(others) if others else [label]
-    if labels.count(label) != 1:
-        raise SelectionError(f"column {label!r}: the name appears more than once, so query cannot name it")
-    probe = pd.DataFrame([list(range(len(labels)))], columns=pd.Index(labels, dtype=object))
-    try:
-        found = len(probe.query(f"`{label}` == {labels.index(label)}")) == 1
-    except Exception:
-        found = False
-    if not found:
-        raise SelectionError(
-            f"column {label!r}: DataFrame.query cannot tell this name from the others; rename the column"
-        )
-    return f"`{label}`"
-
-
-def _literal(value, col: Column) -> str:
-    if col.kind == "datetime":
-        return repr(pd.Timestamp(value).isoformat())
-    if col.kind == "timedelta":
-        return repr(str(pd.Timedelta(int(round(value * 1e9)), unit="ns")))
-    if isinstance(value, int):
-        return repr(value)
-    return repr(float(value))
-
-
-def _label_literal(value, col: Column):
-    """A Python literal for one category value as DataFrame.query compares it, or SelectionError."""
-    if isinstance(value, np.generic):
-        value = value.item()
-    if isinstance(value, str | bool | int):
-        return value
-    if isinstance(value, float) and math.isfinite(value):
-        return value
-    if isinstance(value, pd.Timestamp | _dt.datetime):
-        return str(pd.Timestamp(value))  # query compares a categorical of dates with their text
-    raise SelectionError(
-        f"column {col.name!r}: its category {value!r} ({type(value).__name__}) cannot be written in a "
-        "DataFrame.query expression"
-    )
-
-
-def axis_query(col: Column, items: list, others=()) -> str:
-    """A DataFrame.query expression for one axis's items (OR of its parts)."""
-    name = _quote(col, others)
-    parts = []
-    if col.kind in ("category", "boolean"):
-        picked = [col.raw_labels[col.labels.index(i)] for i in items if i is not None]
-        if picked:
-            values = [_label_literal(v, col) for v in picked]
-            parts.append(f"{name} in {values!r}")
-    else:
-        for lo, hi in (i for i in items if i is not None):
-            sides = ([f"{name} >= {_literal(lo, col)}"] if lo is not None else []) + (
-                [f"{name} <= {_literal(hi, col)}"] if hi is not None else []
-            )
-            parts.append(" and ".join(sides) if sides else f"{name}.notna()")
-    if None in items:
-        parts.append(f"{name}.isna()")
-    if len(parts) == 1:
-        return parts[0]
-    return " or ".join(f"({p})" for p in parts)
-
-
-def to_query(ranges: Ranges, columns: Mapping[str, Column], others=()) -> str:
-    """A pandas ``DataFrame.query`` expression that picks exactly the rows of a selection.
-
-    Axes combine with ``and``, items on one axis with ``or``. An empty selection gives an expression
-    true for every row (``isna() | notna()`` of the first axis query can name). ``others`` are all
-    column labels of the table, so that names pandas would confuse are refused.
-    Raises :class:`SelectionError` naming the column when query cannot express the selection.
-    """
-    parts = [axis_query(columns[axis], items, others) for axis, items in ranges.items() if items]
-    if not parts:
-        errors = []
-        for col in columns.values():
-            try:
-                name = _quote(col, others)
-            except SelectionError as err:
-                errors.append(str(err))
-                continue
-            return f"{name}.isna() | {name}.notna()"
-        raise SelectionError("no axis can be named in DataFrame.query: " + "; ".join(errors))
-    if len(parts) == 1:
-        return parts[0]
-    return " and ".join(f"({p})" for p in parts)

@@ -6,6 +6,7 @@ The traits are the only channel between kernel and front end; DEVELOPERS.md docu
 
 from __future__ import annotations
 
+import logging
 import os
 import threading
 import time
@@ -20,11 +21,15 @@ import traitlets as t
 
 from . import contrast, export, measures, ordering, scaletier, wire
 from .carryover import carry_over
-from .encode import Column, ColumnError, display_name, quantise, table_trait, to_frame
-from .selection import SelectionError, normalise, pack, to_query
+from .encode import Column, ColumnError, display_name, quantise, table_trait, to_frame, with_index
+from .evaluate import pack
+from .pageround import round_page_ranges
+from .query import to_query
+from .selection import SelectionError, normalise
 from .sources import DataSource, EngineError, NotInMemoryError, SourceError, open_source
 
 _STATIC = Path(__file__).parent / "static"
+_log = logging.getLogger("axeswidget")
 
 
 class AxesWidget(anywidget.AnyWidget):
@@ -79,7 +84,9 @@ class AxesWidget(anywidget.AnyWidget):
     bundle_strength = t.Float(0.5).tag(sync=True)
     histograms = t.Bool(True).tag(sync=True)
     pinned = t.Int(-1).tag(sync=True)
+    hidden = t.List(t.Unicode()).tag(sync=True)
     orientation = t.Enum(["vertical", "horizontal"], "vertical").tag(sync=True)
+    callback_error = t.Unicode("").tag(sync=True)
     sample_above = t.Int(1_000_000).tag(sync=True)
     sample_size = t.Int(100_000).tag(sync=True)
     pair_counts = t.Dict().tag(sync=True)
@@ -98,8 +105,15 @@ class AxesWidget(anywidget.AnyWidget):
         sample_size: int = 100_000,
         **options,
     ):
+        # page messages may arrive on another thread (a kernel subshell) while a cell runs: selection
+        # updates, callbacks and the background publishers hold this lock; `_settled` tells `wait()`
+        # when nothing is in flight
+        self._state_lock = threading.RLock()
+        self._settled = threading.Condition(threading.Lock())
+        self._busy = 0
+        self._inside = threading.local()  # depth of page messages / callbacks on this thread
+        self._page_edit = False  # a selection edit from the page is being applied
         super().__init__(height=height, sample_above=sample_above, sample_size=sample_size)
-        self._lock = threading.RLock()  # comm messages and cells may run at once
         self._pair_jobs = scaletier.LatestRunner("axeswidget pair counts")
         self._rank_jobs = scaletier.LatestRunner("axeswidget rank matrix")
         self._axes_arg = axes
@@ -128,6 +142,47 @@ class AxesWidget(anywidget.AnyWidget):
             setattr(self, key, value)
         if ranges:
             self.ranges = ranges
+
+    def set_state(self, sync_data):
+        """Apply a message from the page, serialised with Python-side selection changes.
+
+        For a final edit the on_change callbacks run before the answer (count, mask_bits,
+        answered_seq) is sent, so a page showing the exact count means its callbacks have finished.
+        """
+        with self._busy_section():
+            with self._state_lock:
+                before = self._page_edit
+                self._page_edit = bool({"ranges", "edit_seq", "dragging"} & set(sync_data))
+                try:
+                    super().set_state(sync_data)
+                finally:
+                    self._page_edit = before
+
+    def __setattr__(self, name, value):
+        if name in _LOCKED and "_state_lock" in self.__dict__:
+            with self._state_lock:
+                super().__setattr__(name, value)
+        else:
+            super().__setattr__(name, value)
+
+    def _busy_section(self):
+        return _Busy(self)
+
+    def wait(self, timeout: float | None = None) -> bool:
+        """Block until no callback is running and every page edit received has been answered.
+
+        Returns True when settled, False when ``timeout`` seconds passed first. Comm messages can be
+        handled while a cell runs (kernel subshells), so a cell that depends on what ``on_change``
+        callbacks computed for the page's latest selection can call ``w.wait()`` first.
+        """
+        if getattr(self._inside, "depth", 0):
+            raise RuntimeError(
+                "wait() called from an on_change callback or a page message would wait for itself"
+            )
+        with self._settled:
+            return self._settled.wait_for(
+                lambda: self._busy == 0 and self.answered_seq >= self.edit_seq, timeout
+            )
 
     def _view(self) -> dict:
         """The state a data swap or ``resume=`` carries over (copies of the trait values)."""
@@ -161,13 +216,18 @@ class AxesWidget(anywidget.AnyWidget):
         return source.sample(self.sample_size, seed=0)
 
     def _table_value(self, source: DataSource, sample) -> dict:
+        """The ``table`` trait: every row, or the sample's codes; index labels of the page's rows."""
         if sample is None:
-            return table_trait(source.columns, source.n)
-        return table_trait(source.columns, len(sample), codes=sample.codes, total=source.n)
+            value = table_trait(source.columns, source.n)
+            return with_index(value, source.frame.index) if source.in_memory else value
+        value = table_trait(source.columns, len(sample), codes=sample.codes, total=source.n)
+        if sample.positions is not None:
+            return with_index(value, source.frame.index[sample.positions])
+        return value
 
     def _switch(self, source: DataSource, view: dict) -> None:
         """Show a new source with a view made for it, all at once; on any error nothing changes."""
-        with self._lock:
+        with self._state_lock:
             attrs = ("_source", "_sample", "_mask", "_applied", "_pair_cache")
             before_attrs = {a: getattr(self, a, None) for a in attrs}
             before = self._view() if before_attrs["_source"] is not None else None
@@ -214,9 +274,13 @@ class AxesWidget(anywidget.AnyWidget):
 
         def job(is_latest):
             value = scaletier.rank_matrix(source, sample)
-            with self._lock:
-                if is_latest() and self._source is source:
+            if not self._publish_lock(is_latest):
+                return
+            try:
+                if self._source is source:
                     self.rank_matrix = value
+            finally:
+                self._state_lock.release()
 
         self._rank_jobs.submit(job)
 
@@ -227,7 +291,7 @@ class AxesWidget(anywidget.AnyWidget):
         until the selection changes. The result is published after count/answered_seq, and only if no
         newer request came in meanwhile.
         """
-        with self._lock:
+        with self._state_lock:
             if self._sample is None:
                 return
             source, order, ranges = self._source, list(self.order), dict(self._applied or {})
@@ -236,11 +300,26 @@ class AxesWidget(anywidget.AnyWidget):
 
             def job(is_latest):
                 counts = scaletier.count_pairs(source, order, bins, ranges, mask, cache, is_latest)
-                with self._lock:
-                    if counts is not None and is_latest() and self._source is source:
+                if counts is None or not self._publish_lock(is_latest):
+                    return
+                try:
+                    if self._source is source:
                         self.pair_counts = scaletier.pair_counts_value(order, bins, seq, counts)
+                finally:
+                    self._state_lock.release()
 
             self._pair_jobs.submit(job)
+
+    def _publish_lock(self, is_latest) -> bool:
+        """Take the state lock for a background result, unless a newer request makes it stale first
+        (a data swap holds the lock while it waits for the running job: never wait for it blindly)."""
+        while not self._state_lock.acquire(timeout=0.05):
+            if not is_latest():
+                return False
+        if is_latest():
+            return True
+        self._state_lock.release()
+        return False
 
     def _wait_pair_counts(self, timeout: float = 60.0) -> bool:
         """Block until the background pair counts and rank matrix are published (tests, benchmarks)."""
@@ -253,9 +332,19 @@ class AxesWidget(anywidget.AnyWidget):
     # -- traits ------------------------------------------------------------------------------------
     @t.validate("ranges")
     def _check_ranges(self, proposal):
+        hidden = [a for a in proposal["value"] if a in self.hidden]
+        if hidden:
+            raise t.TraitError(
+                f"axis {hidden[0]!r} is hidden: show it (remove it from hidden) before selecting on it"
+            )
         try:
             clean = normalise(proposal["value"], self._columns)
-            with self._lock:
+            if self._page_edit:  # ends dragged on the page: shortest decimals that pick the same rows
+                try:
+                    clean = round_page_ranges(clean, self._applied or {}, self._columns)
+                except (ArithmeticError, TypeError, ValueError) as err:  # never refuse an edit over looks
+                    _log.debug("axeswidget: range ends kept as sent (%s)", err)
+            with self._state_lock:
                 self._source.prepare(clean)  # evaluated before the trait changes: a failure changes nothing
         except (SelectionError, EngineError) as err:
             raise t.TraitError(str(err)) from None
@@ -342,6 +431,20 @@ class AxesWidget(anywidget.AnyWidget):
                 out.append(axis)
         return out
 
+    @t.validate("hidden")
+    def _check_hidden(self, proposal):
+        """Axes hidden from the page: never one with a range (it would filter rows invisibly), never all."""
+        names = self._axis_list(proposal["value"], "hidden")
+        ranged = [a for a in names if a in self.ranges]
+        if ranged:
+            raise t.TraitError(
+                f"cannot hide axis {ranged[0]!r}: it has a range, which would filter rows invisibly; "
+                "clear its range first"
+            )
+        if names and len(names) == len(self._columns):
+            raise t.TraitError("cannot hide every axis; at least one axis stays shown")
+        return names
+
     @t.validate("flipped")
     def _check_flipped(self, proposal):
         return self._axis_list(proposal["value"], "flipped")
@@ -360,7 +463,7 @@ class AxesWidget(anywidget.AnyWidget):
 
     @t.observe("log_axes")
     def _on_log(self, change):
-        with self._lock:
+        with self._state_lock:
             source = self._source
             for col in source.columns.values():
                 want = col.name in change["new"]
@@ -406,27 +509,33 @@ class AxesWidget(anywidget.AnyWidget):
 
     def _apply(self, ranges, pairs: bool = True):
         """Answer a selection: exact count and page mask first, pair counts after (final edits only)."""
-        with self._lock:
+        with self._state_lock:
             source = self._source
             changed = self._applied is None or ranges != self._applied
+            page = self._page_edit
             with self.hold_sync():
                 if changed:
                     if source.in_memory:
                         mask = source.mask(ranges)
                         count = int(np.count_nonzero(mask))
-                        page = mask if self._sample is None else mask[self._sample.positions]
+                        on_page = mask if self._sample is None else mask[self._sample.positions]
                     else:
                         mask = None
                         count = source.count(ranges)
-                        page = scaletier.sample_mask(source, self._sample, ranges)
+                        on_page = scaletier.sample_mask(source, self._sample, ranges)
                     self._mask, self._applied = mask, {k: list(v) for k, v in ranges.items()}
-                    self.mask_bits = pack(page)
+                    self.mask_bits = pack(on_page)
                     self.count = count
                 self.answered_seq = self.edit_seq
-            final = not self.dragging
-        if pairs and final:
+                final = not self.dragging
+                if page and final:
+                    # a final edit from the page: callbacks first, then the answer goes out (on leaving
+                    # hold_sync), so the page's exact count means the callbacks are done
+                    self._notify(changed, page=True)
+            if not (page and final):
+                self._notify(changed, page=page)
+        if pairs and final:  # after the answer: the exact count never waits for pair counts
             self._count_pairs()
-        self._notify(changed)
 
     @t.validate("saved")
     def _check_saved(self, proposal):
@@ -464,9 +573,9 @@ class AxesWidget(anywidget.AnyWidget):
     def selected(self):
         """The selected rows: in the input's own type (pandas: original index kept); for an engine
         table, the engine's lazy filtered table (a DuckDB relation, a Spark DataFrame; nothing is read)."""
-        if getattr(self._source, "shares_connection", False):
+        if getattr(self._source, "shares_connection", False) and not getattr(self._inside, "depth", 0):
             self._pair_jobs.wait(120)  # the user's next query on this relation must not find it busy
-        with self._lock:  # the in-memory evaluator is shared with edits arriving from the page
+        with self._state_lock:  # the in-memory evaluator is shared with edits arriving from the page
             return self._source.selected(self.ranges)
 
     def to_filter(self):
@@ -589,19 +698,41 @@ class AxesWidget(anywidget.AnyWidget):
         """Stop calling a callback registered with :meth:`on_change`."""
         self._callbacks = [c for c in self._callbacks if c[0] is not callback]
 
-    def _notify(self, changed: bool) -> None:
+    def _notify(self, changed: bool, page: bool = False) -> None:
+        """Run the due callbacks. From the page an error is caught, shown in ``callback_error`` and
+        logged; from Python code it propagates to the caller."""
         final = not self.dragging
         released = final and self._was_dragging
         self._was_dragging = self.dragging
         if not (changed or released):
             return
         now = time.monotonic()
+        due = []
         for entry in list(self._callbacks):
-            callback, every, last = entry
-            if not final and now - last < every:
+            if not final and now - entry[2] < entry[1]:
                 continue  # throttled while dragging; the release always calls
             entry[2] = now
-            callback(self)
+            due.append(entry[0])
+        if not due:
+            return
+        errors = []
+        with self._busy_section():
+            self._page_edit = False  # what a callback sets is a change from Python
+            try:
+                for callback in due:
+                    if not page:
+                        callback(self)
+                        continue
+                    try:
+                        callback(self)
+                    except Exception as err:
+                        text = _callback_error_text(callback, err)
+                        errors.append(text)
+                        _log.error("axeswidget: %s (the selection stands)", text, exc_info=err)
+            finally:
+                self._page_edit = page
+        more = f" (and {len(errors) - 1} more)" if len(errors) > 1 else ""
+        self.callback_error = errors[0] + more if errors else ""
 
     def to_query(self) -> str:
         """A pandas ``DataFrame.query`` expression that reproduces the selection exactly.
@@ -715,10 +846,42 @@ class AxesWidget(anywidget.AnyWidget):
         return f"AxesWidget({len(self._columns)} axes, {self.count} of {self._source.n} rows selected{where})"
 
 
+class _Busy:
+    """Counts a page message or callback round in flight (for ``wait``), per widget and thread."""
+
+    def __init__(self, widget):
+        self.widget = widget
+
+    def __enter__(self):
+        w = self.widget
+        w._inside.depth = getattr(w._inside, "depth", 0) + 1
+        with w._settled:
+            w._busy += 1
+
+    def __exit__(self, *exc):
+        w = self.widget
+        w._inside.depth -= 1
+        with w._settled:
+            w._busy -= 1
+            w._settled.notify_all()
+
+
+def _callback_error_text(callback, err: BaseException) -> str:
+    """A short one-line description of a callback's error, for the page."""
+    name = getattr(callback, "__qualname__", None) or getattr(callback, "__name__", None) or repr(callback)
+    message = " ".join(str(err).split())
+    if len(message) > 200:
+        message = message[:199] + "…"
+    return f"callback {name} raised {type(err).__name__}" + (f": {message}" if message else "")
+
+
+#: what a cell sets that waits for a page message in progress (and vice versa): the data and every
+#: synced trait (traitlets keeps its hold/validation state per widget, not per thread)
+_LOCKED = frozenset(AxesWidget.class_trait_names(sync=True)) | {"data"}
 #: view options that can be given as keyword arguments and are carried over by ``resume=``
 _OPTIONS = wire.OPTIONS
 #: the traits a data swap or ``resume=`` carries over besides the options
-_VIEW = ("order", "ranges", "flipped", "saved", "pinned")
+_VIEW = ("order", "ranges", "flipped", "saved", "pinned", "hidden")
 HEIGHT_MIN, HEIGHT_MAX = 120, 4000
 
 

@@ -2,7 +2,7 @@
 
 ``nw.from_native(table).filter(selection_expression(ranges, columns))`` keeps the rows of the
 selection, on pandas, polars (eager or lazy), pyarrow, DuckDB relations and PySpark DataFrames alike.
-The rules are those of :func:`axeswidget.selection.axis_mask`: items on one axis OR-ed, axes AND-ed,
+The rules are those of :func:`axeswidget.evaluate.axis_mask`: items on one axis OR-ed, axes AND-ed,
 range ends inclusive, ``None`` ends open (taking ``±inf`` in), ``None`` items the missing lane; NaN
 counts as missing on float columns.
 """

@@ -16,7 +16,8 @@ import pandas as pd
 
 from ..density import count_bin_pairs
 from ..encode import encode_frame, to_frame
-from ..selection import MaskEvaluator, Ranges
+from ..evaluate import MaskEvaluator
+from ..selection import Ranges
 from .base import DataSource, Sample, axis_bins, check_ranges
 from .expressions import selection_expression
 
