@@ -32,8 +32,35 @@ def _family(kind: str) -> str:
     return "number" if kind in ("number", "integer") else kind
 
 
-def _domain_ends(col: Column):
+def _rows_in(col: Column, items: list):
+    """The rows a column's items pick: a mask for in-memory columns."""
+    return axis_mask(col, items)
+
+
+def _engine_ends(col: Column, n_rows: int):
+    """(lo, hi) of an engine column from its stored domain, or None when it has no finite value."""
+    neg, pos = col.infinite()
+    if col.n_missing + neg + pos >= n_rows:
+        return None
+    if col.kind == "integer":
+        return int(col.lo), int(col.hi)
+    if col.kind == "number":
+        return float(col.lo), float(col.hi)
+    lo, hi = int(col.lo), int(col.hi)
+    if col.kind == "timedelta":
+        return lo / 1e9, hi / 1e9
+    return _timestamp_text(lo, col), _timestamp_text(hi, col)
+
+
+def _timestamp_text(ns: int, col: Column) -> str:
+    ts = pd.Timestamp(ns, unit="ns")
+    return (ts.tz_localize("UTC").tz_convert(col.tz) if col.tz else ts).isoformat()
+
+
+def _domain_ends(col: Column, n_rows: int = 0):
     """(lo, hi) of the finite present values as canonical range ends, or None when there are none."""
+    if col.values is None:  # the rows live in an engine: its summary holds the domain
+        return _engine_ends(col, n_rows)
     if col.kind in ("number", "integer"):
         if col.exact is not None:
             present = col.exact[~col.missing]
@@ -46,16 +73,16 @@ def _domain_ends(col: Column):
     lo, hi = int(present.min()), int(present.max())
     if col.kind == "timedelta":
         return lo / 1e9, hi / 1e9
-
-    def text(ns: int) -> str:
-        ts = pd.Timestamp(ns, unit="ns")
-        return (ts.tz_localize("UTC").tz_convert(col.tz) if col.tz else ts).isoformat()
-
-    return text(lo), text(hi)
+    return _timestamp_text(lo, col), _timestamp_text(hi, col)
 
 
-def carry_items(axis: str, items: list, old: Column | None, new: Column | None):
-    """Items of one axis that still fit the new column: (kept items, drops, changes)."""
+def carry_items(axis: str, items: list, old: Column | None, new: Column | None, rows_in=None, n_rows=0):
+    """Items of one axis that still fit the new column: (kept items, drops, changes).
+
+    ``rows_in(col, items)`` gives the rows a range picks -- a mask in memory, or an exact count from an
+    engine (a clipped range lies inside the original one, so equal counts mean the same rows).
+    """
+    rows_in = rows_in or _rows_in
     if new is None:
         return [], [f"range on {axis!r} (the axis is gone)"], []
     if old is not None and _family(old.kind) != _family(new.kind):
@@ -65,8 +92,8 @@ def carry_items(axis: str, items: list, old: Column | None, new: Column | None):
     drops, changes, kept = [], [], []
     if old is not None and old.kind != new.kind:
         changes.append(f"range on {axis!r} kept on an axis that is now {new.kind}")
-    domain = None if new.kind in _LABELS else _domain_ends(new)
-    old_domain = None if old is None or new.kind in _LABELS else _domain_ends(old)
+    domain = None if new.kind in _LABELS else _domain_ends(new, n_rows)
+    old_domain = None if old is None or new.kind in _LABELS else _domain_ends(old, n_rows)
     for item in items:
         if item is None:
             kept.append(None)
@@ -82,13 +109,13 @@ def carry_items(axis: str, items: list, old: Column | None, new: Column | None):
         except (SelectionError, ValueError) as err:
             drops.append(f"range {item!r} on {axis!r} ({err})")
             continue
-        rows = axis_mask(new, [span])
+        rows = rows_in(new, [span])
         lo, hi = span
         outside = domain is None or (
             (hi is not None and _end_key(hi, new) < _end_key(domain[0], new))
             or (lo is not None and _end_key(lo, new) > _end_key(domain[1], new))
         )
-        if not rows.any() and outside:
+        if not np.any(rows) and outside:
             drops.append(f"range {list(item)!r} on {axis!r} (misses the new data)")
             continue
         clipped = list(span)
@@ -109,7 +136,7 @@ def carry_items(axis: str, items: list, old: Column | None, new: Column | None):
         if clipped != span:
             try:
                 (clipped,) = normalise_items([clipped], new)
-                same = np.array_equal(axis_mask(new, [clipped]), rows)
+                same = np.array_equal(rows_in(new, [clipped]), rows)
             except (SelectionError, ValueError):
                 same = False
             if same:
@@ -119,8 +146,13 @@ def carry_items(axis: str, items: list, old: Column | None, new: Column | None):
     return (normalise_items(kept, new) if kept else []), drops, changes
 
 
-def carry_over(view: dict, old_columns: dict, new_columns: dict, n_rows: int):
-    """The view on new columns: (new view, notes naming every drop or change)."""
+def carry_over(view: dict, old_columns: dict, new_columns: dict, n_rows: int, rows_in=None, total=None):
+    """The view on new columns: (new view, notes naming every drop or change).
+
+    ``n_rows``: rows the page holds (for the pinned row); ``total``: rows of the table (default
+    ``n_rows``); ``rows_in``: see :func:`carry_items` (engine sources count instead of masking).
+    """
+    total = n_rows if total is None else total
     notes: list[str] = []
     out = dict(view)
     gone = [a for a in view["order"] if a not in new_columns]
@@ -139,7 +171,9 @@ def carry_over(view: dict, old_columns: dict, new_columns: dict, n_rows: int):
 
     ranges = {}
     for axis, items in view["ranges"].items():
-        kept, drops, changes = carry_items(axis, items, old_columns.get(axis), new_columns.get(axis))
+        kept, drops, changes = carry_items(
+            axis, items, old_columns.get(axis), new_columns.get(axis), rows_in, total
+        )
         notes += (drops if axis not in gone else []) + changes
         if kept:
             ranges[axis] = kept
@@ -149,7 +183,9 @@ def carry_over(view: dict, old_columns: dict, new_columns: dict, n_rows: int):
     for name, sel in view["saved"].items():
         kept_sel, why = {}, []
         for axis, items in sel.items():
-            kept, drops, changes = carry_items(axis, items, old_columns.get(axis), new_columns.get(axis))
+            kept, drops, changes = carry_items(
+                axis, items, old_columns.get(axis), new_columns.get(axis), rows_in, total
+            )
             why += drops
             notes += [f"saved selection {name!r}: {c}" for c in changes]
             if kept:

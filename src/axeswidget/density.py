@@ -166,6 +166,39 @@ def _count(left: np.ndarray, right: np.ndarray, bins: int) -> np.ndarray:
     return np.bincount(index, minlength=side * side).reshape(side, side).astype(np.int64, copy=False)
 
 
+#: rows per block in :func:`count_bin_pairs` (the block's index arrays stay in the CPU cache)
+BLOCK_ROWS = 1 << 16
+
+
+def count_bin_pairs(left: np.ndarray, right: np.ndarray, bins: int, mask=None) -> np.ndarray:
+    """Count matrix of two arrays of bin indices (``0..bins``), all rows or only the rows of ``mask``.
+
+    Works block by block: the combined index of one block of rows at a time (never an n-length index
+    array), and with a mask no compacted copies -- an unselected row's index is moved past the
+    ``(bins + 1)^2`` cells and dropped. Same result as :func:`_count` on ``left[mask], right[mask]``.
+    """
+    side = bins + 1
+    cells = side * side
+    n = left.shape[0]
+    keep = None if mask is None else np.asarray(mask, dtype=bool).view(np.uint8)
+    out = np.zeros(2 * cells if keep is not None else cells, dtype=np.int64)
+    block = min(BLOCK_ROWS, max(n, 1))
+    index = np.empty(block, dtype=np.intp)
+    shift = np.empty(block, dtype=np.intp) if keep is not None else None
+    for start in range(0, n, block):
+        stop = min(n, start + block)
+        v = index[: stop - start]
+        np.multiply(left[start:stop], side, out=v, dtype=np.intp, casting="unsafe")
+        v += right[start:stop]
+        if keep is not None:
+            w = shift[: stop - start]
+            np.multiply(keep[start:stop], -cells, out=w, dtype=np.intp, casting="unsafe")
+            w += cells
+            v += w  # selected rows keep their cell, the others land in the second half
+        out += np.bincount(v, minlength=out.shape[0])
+    return out[:cells].reshape(side, side)
+
+
 def pair_counts(codes_a: np.ndarray, codes_b: np.ndarray, bins: int = DENSITY_BINS, mask=None) -> np.ndarray:
     """Rows per (bin on axis a, bin on axis b): a ``(bins + 1, bins + 1)`` int64 matrix.
 

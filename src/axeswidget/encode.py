@@ -30,6 +30,7 @@ import re
 import warnings
 from dataclasses import dataclass, field
 
+import narwhals as nw
 import numpy as np
 import pandas as pd
 
@@ -80,15 +81,26 @@ class Column:
     label_codes: np.ndarray | None = None  # int32 index into labels per row, -1 missing
     counts: list[int] | None = None
     codes: np.ndarray = field(default=None, repr=False)
+    inf_counts: tuple[int, int] | None = field(default=None, repr=False, compare=False)  # cache
 
     @property
     def n_missing(self) -> int:
-        return int(self.missing.sum())
+        return int(np.count_nonzero(self.missing))
 
     def infinite(self) -> tuple[int, int]:
+        """(-inf count, +inf count) of a number axis (counted once; the values do not change)."""
         if self.kind not in ("number", "integer"):
             return 0, 0
-        return int(np.isneginf(self.values).sum()), int(np.isposinf(self.values).sum())
+        if self.inf_counts is None:
+            v = self.values
+            if np.isfinite(v.min(initial=0.0)) and np.isfinite(v.max(initial=0.0)):  # no inf (NaN: count)
+                self.inf_counts = (0, 0)
+            else:
+                self.inf_counts = (
+                    int(np.count_nonzero(np.isneginf(v))),
+                    int(np.count_nonzero(np.isposinf(v))),
+                )
+        return self.inf_counts
 
     def encode(self) -> None:
         """(Re)compute the wire codes from the exact values."""
@@ -136,9 +148,9 @@ class Column:
 def to_frame(data, names=None) -> pd.DataFrame:
     """Accept the supported table types and return a pandas DataFrame (no copy where possible).
 
-    pandas DataFrame; polars DataFrame; pyarrow Table or RecordBatch; any object offering the Arrow
-    PyCapsule stream interface (``__arrow_c_stream__``); a dict of 1-D arrays; a 2-D numpy array
-    (column names from ``names``, otherwise ``"0", "1", ...``).
+    pandas DataFrame; any eager table narwhals reads (polars DataFrame, pyarrow Table, ...); any object
+    offering the Arrow PyCapsule stream interface (``__arrow_c_stream__``, e.g. a pyarrow RecordBatch);
+    a dict of 1-D arrays; a 2-D numpy array (column names from ``names``, otherwise ``"0", "1", ...``).
     """
     if isinstance(data, pd.DataFrame):
         return data.copy(deep=False)  # copy-on-write: later edits of the user's frame do not leak in
@@ -161,13 +173,17 @@ def to_frame(data, names=None) -> pd.DataFrame:
             )
         except ValueError as err:
             raise ValueError(f"axeswidget: the dict's arrays cannot form a table: {err}") from None
-    mod = type(data).__module__.split(".")[0]
-    if mod == "polars":
-        check_names([str(c) for c in data.columns])
-        return _foreign(data.to_pandas, "polars")
-    if mod == "pyarrow" and hasattr(data, "to_pandas"):
-        check_names([str(c) for c in data.schema.names] if hasattr(data, "schema") else [])
-        return _foreign(lambda: data.to_pandas(date_as_object=False), "pyarrow")  # dates as datetime64
+    try:  # any eager table narwhals reads (polars, pyarrow, modin, cudf, ...)
+        table = nw.from_native(data, eager_only=True)
+    except TypeError:
+        table = None
+    if table is not None:
+        check_names([str(c) for c in table.columns])
+        library = table.implementation.name.lower()
+        if table.implementation is nw.Implementation.PYARROW:  # dates as datetime64, not objects
+            native = table.to_native()
+            return _foreign(lambda: native.to_pandas(date_as_object=False), library)
+        return _foreign(table.to_pandas, library)
     if hasattr(data, "__arrow_c_stream__"):
         import pyarrow as pa
 
@@ -232,22 +248,54 @@ def quantise(values: np.ndarray, lo: float, hi: float, log: bool = False, missin
 
     Halves are scaled separately so that a domain such as [-1e308, 1e308] does not overflow.
     """
-    codes = np.full(values.shape, CODE_MISSING, dtype=np.uint16)
-    present = ~np.isnan(values) if missing is None else ~missing & ~np.isnan(values)
-    v = np.clip(values[present], lo, hi)
+    codes = np.empty(values.shape, dtype=np.uint16)
     if log:
-        v, lo, hi = np.log(v), math.log(lo), math.log(hi)
-    half_span = hi * 0.5 - lo * 0.5
-    if half_span > 0 and math.isfinite(CODE_MAX / half_span):
-        codes[present] = np.rint((v * 0.5 - lo * 0.5) * (CODE_MAX / half_span)).astype(np.uint16)
-    elif half_span > 0:  # a span of subnormal numbers: halving would lose them, and the span cannot overflow
-        codes[present] = np.rint((v - lo) / (hi - lo) * CODE_MAX).astype(np.uint16)
+        lo_axis, hi_axis = math.log(lo), math.log(hi)
     else:
-        codes[present] = 0
+        lo_axis, hi_axis = lo, hi
+    half_span = hi_axis * 0.5 - lo_axis * 0.5
+    halves = half_span > 0 and math.isfinite(CODE_MAX / half_span)
+    # a span of subnormal numbers: halving would lose them, and the span cannot overflow
+    subnormal = half_span > 0 and not halves
+    scale, offset = (CODE_MAX / half_span, lo_axis * 0.5) if halves else (0.0, 0.0)
+    # block by block (the temporaries stay in the CPU cache); per value the same float64 steps as
+    # rint((clip(v, lo, hi) * 0.5 - lo * 0.5) * (CODE_MAX / half_span)), or for a subnormal span
+    # rint((v - lo) / (hi - lo) * CODE_MAX)
+    block = 1 << 16
+    for start in range(0, values.shape[0], block):
+        stop = min(values.shape[0], start + block)
+        x = values[start:stop]
+        absent = np.isnan(x)
+        if missing is not None:
+            absent |= missing[start:stop]
+        v = np.clip(x, lo, hi)
+        if log:
+            with np.errstate(invalid="ignore"):  # NaN rows stay NaN and are marked missing below
+                np.log(v, out=v)
+        if halves:
+            v *= 0.5
+            v -= offset
+            v *= scale
+            np.rint(v, out=v)
+        elif subnormal:
+            v -= lo_axis
+            v /= hi_axis - lo_axis
+            v *= CODE_MAX
+            np.rint(v, out=v)
+        else:
+            v[:] = 0.0
+        v[absent] = 0.0
+        out = codes[start:stop]
+        out[:] = v.astype(np.uint16)
+        out[absent] = CODE_MISSING
     return codes
 
 
 def _domain(values: np.ndarray) -> tuple[float, float]:
+    if values.size:
+        lo, hi = values.min(), values.max()
+        if np.isfinite(lo) and np.isfinite(hi):  # no NaN, no inf: the plain extremes
+            return float(lo), float(hi)
     finite = values[np.isfinite(values)]
     if not finite.size:
         return 0.0, 1.0
@@ -560,9 +608,28 @@ def index_spec(index) -> dict | None:
     return {"labels": [str(v) for v in index]}
 
 
-def table_trait(columns: dict[str, Column], n: int) -> dict:
-    """The value of the widget's ``table`` trait: row count plus one spec (with its buffer) per axis."""
-    return {"n": int(n), "columns": [c.spec() for c in columns.values()]}
+def table_trait(
+    columns: dict[str, Column], n: int, codes: dict | None = None, total: int | None = None
+) -> dict:
+    """The value of the widget's ``table`` trait: row counts plus one spec (with its buffer) per axis.
+
+    Without ``codes`` every row's codes are sent (``n`` rows, ``total == n``, ``sampled`` False). With
+    ``codes`` (axis -> uint16 codes of ``n`` sample rows) and ``total`` (all rows), the buffers carry
+    the sample while the specs still describe all ``total`` rows.
+    """
+    specs = []
+    for col in columns.values():
+        spec = col.spec()
+        if codes is not None:
+            spec["codes"] = memoryview(np.ascontiguousarray(codes[col.name], dtype=np.uint16)).cast("B")
+        specs.append(spec)
+    sampled = codes is not None
+    return {
+        "n": int(n),
+        "total": int(n if total is None else total),
+        "sampled": sampled,
+        "columns": specs,
+    }
 
 
 def with_index(table: dict, index) -> dict:

@@ -7,55 +7,29 @@ The traits are the only channel between kernel and front end; DEVELOPERS.md docu
 from __future__ import annotations
 
 import logging
+import os
 import threading
 import time
 import warnings
 from pathlib import Path
 
 import anywidget
+import narwhals as nw
 import numpy as np
 import pandas as pd
 import traitlets as t
 
-from . import contrast, export, measures, ordering, wire
+from . import contrast, export, measures, ordering, scaletier, wire
 from .carryover import carry_over
-from .encode import (
-    Column,
-    ColumnError,
-    display_name,
-    encode_frame,
-    quantise,
-    table_trait,
-    to_frame,
-    with_index,
-)
-from .evaluate import MaskEvaluator, pack
+from .encode import Column, ColumnError, display_name, quantise, table_trait, to_frame, with_index
+from .evaluate import pack
 from .pageround import round_page_ranges
 from .query import to_query
 from .selection import SelectionError, normalise
+from .sources import DataSource, EngineError, NotInMemoryError, SourceError, open_source
 
 _STATIC = Path(__file__).parent / "static"
 _log = logging.getLogger("axeswidget")
-
-
-def _take_rows(source, frame: pd.DataFrame, mask: np.ndarray):
-    """The selected rows in the same type as the table the user gave."""
-    mod = type(source).__module__.split(".")[0]
-    if isinstance(source, pd.DataFrame) or source is None:
-        return frame[mask]
-    if mod == "polars":
-        import polars as pl
-
-        return source.filter(pl.Series(mask))
-    if mod == "pyarrow" and hasattr(source, "filter"):
-        import pyarrow as pa
-
-        return source.filter(pa.array(mask))
-    if isinstance(source, np.ndarray):
-        return source[mask]
-    if isinstance(source, dict):
-        return {k: np.asarray(v)[mask] for k, v in source.items()}
-    return frame[mask]  # Arrow stream objects: the stream is consumed, a pandas frame comes back
 
 
 class AxesWidget(anywidget.AnyWidget):
@@ -67,8 +41,11 @@ class AxesWidget(anywidget.AnyWidget):
     Parameters
     ----------
     data:
-        a pandas or polars DataFrame, a pyarrow Table/RecordBatch, an object with the Arrow PyCapsule
-        stream interface, a dict of 1-D arrays, or a 2-D numpy array (with ``names``).
+        a pandas or polars DataFrame (or polars LazyFrame), a pyarrow Table/RecordBatch, an object with
+        the Arrow PyCapsule stream interface, a dict of 1-D arrays, a 2-D numpy array (with ``names``);
+        or a table held by an engine: a path, folder or glob of Parquet/CSV files (opened with DuckDB,
+        out of core), a DuckDB relation, a PySpark DataFrame. Engine tables keep their rows: ``count``
+        and ``selected`` (a lazy table) come from the engine, ``mask`` is not available.
     axes:
         column names to show, in order. ``None`` shows every column that can be drawn; the others are
         skipped with one warning.
@@ -78,6 +55,9 @@ class AxesWidget(anywidget.AnyWidget):
         chart height in CSS pixels.
     names:
         column names for a 2-D numpy array.
+    sample_above, sample_size:
+        the scale tier: a table with more than ``sample_above`` rows (and every engine table) sends the
+        page a seeded sample of ``sample_size`` rows plus binned pair counts of all rows, not every row.
     """
 
     _esm = _STATIC / "widget.js"
@@ -109,29 +89,49 @@ class AxesWidget(anywidget.AnyWidget):
     callback_error = t.Unicode("").tag(sync=True)
     #: kernel -> page: up to 3 axes where the selected rows differ most from the rest (``contrast()``)
     contrast_axes = t.List(t.Unicode()).tag(sync=True)
+    sample_above = t.Int(1_000_000).tag(sync=True)
+    sample_size = t.Int(100_000).tag(sync=True)
+    pair_counts = t.Dict().tag(sync=True)
+    rank_matrix = t.Dict().tag(sync=True)
 
     def __init__(
-        self, data, axes=None, *, ranges=None, height: int = 380, names=None, resume=None, **options
+        self,
+        data,
+        axes=None,
+        *,
+        ranges=None,
+        height: int = 380,
+        names=None,
+        resume=None,
+        sample_above: int = 1_000_000,
+        sample_size: int = 100_000,
+        **options,
     ):
         # page messages may arrive on another thread (a kernel subshell) while a cell runs: selection
-        # updates and callbacks hold this lock; `_settled` tells `wait()` when nothing is in flight
+        # updates, callbacks and the background publishers hold this lock; `_settled` tells `wait()`
+        # when nothing is in flight
         self._state_lock = threading.RLock()
         self._settled = threading.Condition(threading.Lock())
         self._busy = 0
         self._inside = threading.local()  # depth of page messages / callbacks on this thread
         self._page_edit = False  # a selection edit from the page is being applied
-        super().__init__(height=height)
+        super().__init__(height=height, sample_above=sample_above, sample_size=sample_size)
+        self._pair_jobs = scaletier.LatestRunner("axeswidget pair counts")
+        self._rank_jobs = scaletier.LatestRunner("axeswidget rank matrix")
         self._axes_arg = axes
         self._callbacks: list[list] = []  # [callback, min_interval_while_dragging, last_call_time]
         self._was_dragging = False
-        frame, source, columns = _prepare(data, axes, names)
-        view = {**self._view(), "order": list(columns)}
+        source = _open(data, axes, names)
+        view = {**self._view(), "order": list(source.columns)}
         notes = []
         if resume is not None:
             if not isinstance(resume, AxesWidget):
                 raise TypeError(f"resume= takes an AxesWidget, got {type(resume).__name__}")
-            view, notes = carry_over(resume._view(), resume._columns, columns, len(frame))
-        self._switch(frame, source, columns, view)
+            page_rows, rows_in = self._plan(source)
+            view, notes = carry_over(
+                resume._view(), resume._columns, source.columns, page_rows, rows_in, source.n
+            )
+        self._switch(source, view)
         if notes:
             warnings.warn(
                 "axeswidget: could not take over all of the view: " + "; ".join(notes), stacklevel=2
@@ -193,34 +193,143 @@ class AxesWidget(anywidget.AnyWidget):
         view["saved"] = {k: {a: list(i) for a, i in v.items()} for k, v in view["saved"].items()}
         return {k: list(v) if isinstance(v, list) else v for k, v in view.items()}
 
-    def _switch(self, frame: pd.DataFrame, source, columns: dict, view: dict) -> None:
-        """Show new columns with a view made for them, all at once; on any error nothing changes."""
-        attrs = ("_frame", "_source", "_columns", "_evaluator")
-        before_attrs = {a: getattr(self, a, None) for a in attrs}
-        before = self._view() if before_attrs["_columns"] is not None else None
-        before_wire = (self.table, self.mask_bits, self.count)
-        try:
-            for col in columns.values():
-                want = col.name in view["log_axes"]
-                if col.log != want:
-                    col.log = want
-                    col.encode()
-            self._frame, self._source, self._columns = frame, source, columns
-            self._evaluator = MaskEvaluator(columns, len(frame))
-            with self.hold_trait_notifications():
-                self.table = with_index(table_trait(columns, len(frame)), frame.index)
-                for key in _VIEW + _OPTIONS:
-                    setattr(self, key, view[key])
-            self._apply(self.ranges)
-        except BaseException:
-            for a, v in before_attrs.items():
-                setattr(self, a, v)
-            if before is not None:
+    # -- the source behind the view -----------------------------------------------------------------
+    @property
+    def _columns(self) -> dict[str, Column]:
+        """The source's axes (a view; the source owns them)."""
+        return self._source.columns if getattr(self, "_source", None) is not None else None
+
+    def _sampled(self, source: DataSource | None = None) -> bool:
+        """True when the page gets a sample (scale tier): engine sources, or more rows than sample_above."""
+        source = source if source is not None else self._source
+        return not source.in_memory or source.n > self.sample_above
+
+    def _plan(self, source: DataSource):
+        """(rows the page will hold, rows_in for carry_over) for a source not yet shown."""
+        page_rows = min(source.n, self.sample_size) if self._sampled(source) else source.n
+        if source.in_memory:
+            return page_rows, None
+        return page_rows, lambda col, items: source.count({col.name: items})
+
+    def _draw_sample(self, source: DataSource):
+        """The seeded sample of the scale tier, or None when the page gets every row."""
+        if not self._sampled(source):
+            return None
+        return source.sample(self.sample_size, seed=0)
+
+    def _table_value(self, source: DataSource, sample) -> dict:
+        """The ``table`` trait: every row, or the sample's codes; index labels of the page's rows."""
+        if sample is None:
+            value = table_trait(source.columns, source.n)
+            return with_index(value, source.frame.index) if source.in_memory else value
+        value = table_trait(source.columns, len(sample), codes=sample.codes, total=source.n)
+        if sample.positions is not None:
+            return with_index(value, source.frame.index[sample.positions])
+        return value
+
+    def _switch(self, source: DataSource, view: dict) -> None:
+        """Show a new source with a view made for it, all at once; on any error nothing changes."""
+        with self._state_lock:
+            attrs = ("_source", "_sample", "_mask", "_applied", "_pair_cache")
+            before_attrs = {a: getattr(self, a, None) for a in attrs}
+            before = self._view() if before_attrs["_source"] is not None else None
+            before_wire = (self.table, self.mask_bits, self.count, self.pair_counts, self.rank_matrix)
+            try:
+                for col in source.columns.values():
+                    want = col.name in view["log_axes"]
+                    if col.log != want:
+                        col.log = want
+                        col.encode()
+                sample = self._draw_sample(source)
+                value = self._table_value(source, sample)
+                later = source.in_memory and source.n > scaletier.RANK_ROWS  # sampled: in the background
+                ranks = {} if later else scaletier.rank_matrix(source, sample)
+                self._source, self._sample = source, sample
+                self._mask, self._applied, self._pair_cache = None, None, {}
+                self._pair_jobs.cancel()
+                self._rank_jobs.cancel()
                 with self.hold_trait_notifications():
+                    self.table = value
+                    self.rank_matrix = ranks
+                    self.pair_counts = {}
                     for key in _VIEW + _OPTIONS:
-                        setattr(self, key, before[key])
-                    self.table, self.mask_bits, self.count = before_wire
-            raise
+                        setattr(self, key, view[key])
+                self._apply(self.ranges, pairs=False)
+            except BaseException:
+                for a, v in before_attrs.items():
+                    setattr(self, a, v)
+                if before is not None:
+                    with self.hold_trait_notifications():
+                        for key in _VIEW + _OPTIONS:
+                            setattr(self, key, before[key])
+                        (self.table, self.mask_bits, self.count, self.pair_counts, self.rank_matrix) = (
+                            before_wire
+                        )
+                raise
+            if later:
+                self._measure_ranks()
+            self._count_pairs()
+
+    def _measure_ranks(self) -> None:
+        """Compute ``rank_matrix`` in the background (a 200,000-row sample of a big table takes a while)."""
+        source, sample = self._source, self._sample
+
+        def job(is_latest):
+            value = scaletier.rank_matrix(source, sample)
+            if not self._publish_lock(is_latest):
+                return
+            try:
+                if self._source is source:
+                    self.rank_matrix = value
+            finally:
+                self._state_lock.release()
+
+        self._rank_jobs.submit(job)
+
+    def _count_pairs(self) -> None:
+        """Recount the pair counts of the current order in the background (scale tier only).
+
+        ``all`` matrices are reused per pair until the data or its codes change; ``selected`` ones
+        until the selection changes. The result is published after count/answered_seq, and only if no
+        newer request came in meanwhile.
+        """
+        with self._state_lock:
+            if self._sample is None:
+                return
+            source, order, ranges = self._source, list(self.order), dict(self._applied or {})
+            mask, seq, cache = self._mask, self.answered_seq, self._pair_cache
+            bins = wire.DENSITY_BINS
+
+            def job(is_latest):
+                counts = scaletier.count_pairs(source, order, bins, ranges, mask, cache, is_latest)
+                if counts is None or not self._publish_lock(is_latest):
+                    return
+                try:
+                    if self._source is source:
+                        self.pair_counts = scaletier.pair_counts_value(order, bins, seq, counts)
+                finally:
+                    self._state_lock.release()
+
+            self._pair_jobs.submit(job)
+
+    def _publish_lock(self, is_latest) -> bool:
+        """Take the state lock for a background result, unless a newer request makes it stale first
+        (a data swap holds the lock while it waits for the running job: never wait for it blindly)."""
+        while not self._state_lock.acquire(timeout=0.05):
+            if not is_latest():
+                return False
+        if is_latest():
+            return True
+        self._state_lock.release()
+        return False
+
+    def _wait_pair_counts(self, timeout: float = 60.0) -> bool:
+        """Block until the background pair counts and rank matrix are published (tests, benchmarks)."""
+        done = self._pair_jobs.wait(timeout) and self._rank_jobs.wait(timeout)
+        for runner in (self._pair_jobs, self._rank_jobs):
+            if runner.error is not None:
+                raise runner.error
+        return done
 
     # -- traits ------------------------------------------------------------------------------------
     @t.validate("ranges")
@@ -234,11 +343,12 @@ class AxesWidget(anywidget.AnyWidget):
             clean = normalise(proposal["value"], self._columns)
             if self._page_edit:  # ends dragged on the page: shortest decimals that pick the same rows
                 try:
-                    clean = round_page_ranges(clean, self._evaluator.ranges, self._columns)
+                    clean = round_page_ranges(clean, self._applied or {}, self._columns)
                 except (ArithmeticError, TypeError, ValueError) as err:  # never refuse an edit over looks
                     _log.debug("axeswidget: range ends kept as sent (%s)", err)
-            self._evaluator.prepare(clean)  # evaluated before the trait changes: a failure changes nothing
-        except SelectionError as err:
+            with self._state_lock:
+                self._source.prepare(clean)  # evaluated before the trait changes: a failure changes nothing
+        except (SelectionError, EngineError) as err:
             raise t.TraitError(str(err)) from None
         return clean
 
@@ -288,14 +398,25 @@ class AxesWidget(anywidget.AnyWidget):
     @t.validate("pinned")
     def _check_pinned(self, proposal):
         row = int(proposal["value"])
-        if not -1 <= row < len(self._frame):
-            raise t.TraitError(f"pinned must be a row position in 0..{len(self._frame) - 1} or -1, got {row}")
+        rows = self.table.get("n", 0)
+        if not -1 <= row < rows:
+            raise t.TraitError(f"pinned must be a row position in 0..{rows - 1} or -1, got {row}")
         return row
 
     @property
     def pinned_index(self):
-        """Index label of the row pinned on the page (click a line), or None."""
-        return None if self.pinned < 0 else self._frame.index[self.pinned]
+        """Index label of the row pinned on the page (click a line), or None.
+
+        In the scale tier the page holds sample rows; the label is that of the sample row. Engine
+        tables have no index: the pinned sample row's position among the sample rows is given.
+        """
+        if self.pinned < 0:
+            return None
+        if self._sample is None:
+            return self._source.frame.index[self.pinned]
+        if self._sample.positions is not None:
+            return self._source.frame.index[self._sample.positions[self.pinned]]
+        return self.pinned
 
     def _axis_list(self, names, option: str, check=None) -> list[str]:
         """Axis names without repeats; unknown names (or ones ``check`` refuses) raise a TraitError."""
@@ -344,12 +465,43 @@ class AxesWidget(anywidget.AnyWidget):
 
     @t.observe("log_axes")
     def _on_log(self, change):
-        for col in self._columns.values():
-            want = col.name in change["new"]
-            if col.log != want:
-                col.log = want
-                col.codes = quantise(col.axis_units(), col.lo, col.hi, col.log, col.missing)
-        self.table = with_index(table_trait(self._columns, len(self._frame)), self._frame.index)
+        with self._state_lock:
+            source = self._source
+            for col in source.columns.values():
+                want = col.name in change["new"]
+                if col.log != want:
+                    col.log = want
+                    if source.in_memory:
+                        col.codes = quantise(col.axis_units(), col.lo, col.hi, col.log, col.missing)
+            if self._sample is not None:  # new codes: a new sample of the same rows, pair counts again
+                if source.in_memory:
+                    at = self._sample.positions
+                    self._sample.codes = {a: c.codes[at] for a, c in source.columns.items()}
+                else:
+                    self._sample = source.sample(len(self._sample), seed=0)
+                self._pair_cache = {}
+            self.table = self._table_value(source, self._sample)
+        self._count_pairs()
+
+    @t.observe("order")
+    def _on_order(self, change):
+        self._count_pairs()
+
+    @t.observe("sample_above", "sample_size")
+    def _on_tier(self, change):
+        if getattr(self, "_source", None) is not None and change["old"] != change["new"]:
+            view = {
+                **self._view(),
+                "pinned": -1,
+            }  # the page's rows change: a pinned position means another row
+            self._switch(self._source, view)
+
+    @t.validate("sample_above", "sample_size")
+    def _check_tier(self, proposal):
+        value, name = int(proposal["value"]), proposal["trait"].name
+        if value < (1 if name == "sample_size" else 0):
+            raise t.TraitError(f"{name} must be a positive number of rows, got {value}")
+        return value
 
     @t.observe("ranges", "edit_seq", "dragging")
     def _on_ranges(self, change):
@@ -357,28 +509,40 @@ class AxesWidget(anywidget.AnyWidget):
         # after all of them are set
         self._apply(self.ranges)
 
-    def _apply(self, ranges):
+    def _apply(self, ranges, pairs: bool = True):
+        """Answer a selection: exact count and page mask first, pair counts after (final edits only)."""
         with self._state_lock:
-            changed = not self._evaluator.evaluated or ranges != self._evaluator.ranges
+            source = self._source
+            changed = self._applied is None or ranges != self._applied
             page = self._page_edit
             # the contrast markers follow final selections (kept as they were while dragging)
             mark = not self.dragging and (changed or self._was_dragging)
             with self.hold_sync():
                 if changed:
-                    mask = self._evaluator.update(ranges)
-                    self.mask_bits = pack(mask)
-                    self.count = int(np.count_nonzero(mask))
+                    if source.in_memory:
+                        mask = source.mask(ranges)
+                        count = int(np.count_nonzero(mask))
+                        on_page = mask if self._sample is None else mask[self._sample.positions]
+                    else:
+                        mask = None
+                        count = source.count(ranges)
+                        on_page = scaletier.sample_mask(source, self._sample, ranges)
+                    self._mask, self._applied = mask, {k: list(v) for k, v in ranges.items()}
+                    self.mask_bits = pack(on_page)
+                    self.count = count
                 self.answered_seq = self.edit_seq
-                final_page_edit = page and not self.dragging
-                if final_page_edit:
+                final = not self.dragging
+                if page and final:
                     # a final edit from the page: callbacks first, then the answer goes out (on leaving
                     # hold_sync), so the page's exact count means the callbacks are done
                     self._notify(changed, page=True)
-            if not final_page_edit:
+            if not (page and final):
                 self._notify(changed, page=page)
             # computed after the answer and the callbacks, so it never delays the exact count
             if mark:
                 self._mark_contrast()
+        if pairs and final:  # after the answer: the exact count never waits for pair counts
+            self._count_pairs()
 
     def _mark_contrast(self) -> None:
         """Name the 3 unbrushed axes that set a final selection apart most (``contrast``) for the page.
@@ -386,9 +550,9 @@ class AxesWidget(anywidget.AnyWidget):
         An empty list without a proper selection (no row or every row selected) and above
         ``CONTRAST_MAX_ROWS`` rows, where it would slow every edit down.
         """
-        mask = self._evaluator.mask
-        n, picked = len(mask), self.count
-        if not 0 < picked < n or n > CONTRAST_MAX_ROWS:
+        mask = self._mask
+        n, picked = self._source.n, self.count
+        if mask is None or not 0 < picked < n or n > CONTRAST_MAX_ROWS:
             self.contrast_axes = []
             return
         try:
@@ -418,27 +582,74 @@ class AxesWidget(anywidget.AnyWidget):
     # -- public API --------------------------------------------------------------------------------
     @property
     def mask(self) -> np.ndarray:
-        """Boolean array, one entry per row: True where the row is picked on every axis with a selection."""
-        return self._evaluator.mask
+        """Boolean array, one entry per row: True where the row is picked on every axis with a selection.
+
+        Only for tables held in this process; an engine table raises NotInMemoryError (use ``count``,
+        ``selected``, ``to_filter()`` or ``to_sql()``).
+        """
+        self._need_rows("w.mask")
+        return self._mask
+
+    def _need_rows(self, what: str) -> None:
+        if not self._source.in_memory:
+            engine = self._source.engine
+            raise NotInMemoryError(
+                f"{what} needs every row in this process, but the rows live in {engine} "
+                f"({self._source.n} rows); use w.count for the exact number selected, w.selected for "
+                f"the selected rows as a lazy {engine} table, or w.to_filter() / w.to_sql() for the filter"
+            )
 
     @property
     def selected(self):
-        """The selected rows, in the input's own type (pandas: original index kept)."""
-        return _take_rows(self._source, self._frame, self.mask)
+        """The selected rows: in the input's own type (pandas: original index kept); for an engine
+        table, the engine's lazy filtered table (a DuckDB relation, a Spark DataFrame; nothing is read)."""
+        if getattr(self._source, "shares_connection", False) and not getattr(self._inside, "depth", 0):
+            self._pair_jobs.wait(120)  # the user's next query on this relation must not find it busy
+        with self._state_lock:  # the in-memory evaluator is shared with edits arriving from the page
+            return self._source.selected(self.ranges)
+
+    def to_filter(self):
+        """The selection as a narwhals expression: ``nw.from_native(table).filter(w.to_filter())``.
+
+        Works on any table narwhals reads (pandas, polars, pyarrow, DuckDB, Spark); no selection gives
+        ``nw.lit(True)``.
+        """
+        return self._source.filter_expression(self.ranges)
+
+    def to_sql(self) -> str:
+        """The selection as a SQL WHERE condition in the engine's dialect (DuckDB and Spark tables).
+
+        ``SELECT count(*) FROM t WHERE <w.to_sql()>`` gives ``w.count``; ``TRUE`` when nothing is
+        selected. In-memory tables have no SQL dialect: use :meth:`to_filter` or :meth:`to_query`.
+        """
+        try:
+            return self._source.filter_sql(self.ranges)
+        except SourceError:
+            raise ValueError(
+                "to_sql() is for tables held by a SQL engine (DuckDB, Spark); this table is in memory: "
+                "use w.to_filter() (narwhals) or w.to_query() (pandas)"
+            ) from None
 
     @property
     def data(self) -> pd.DataFrame:
-        """A copy of the table the widget shows, as a pandas DataFrame (editing it changes nothing here)."""
-        return self._frame.copy(deep=True)
+        """A copy of the table the widget shows, as a pandas DataFrame (editing it changes nothing here).
+
+        Engine tables are not copied into memory: NotInMemoryError (the engine's table is
+        ``w.selected`` after ``w.clear()``).
+        """
+        self._need_rows("w.data")
+        return self._source.frame.copy(deep=True)
 
     @data.setter
     def data(self, new) -> None:
         """Show a new table; the view is carried over where it fits (see ``carryover``), all or nothing."""
         axes = self._axes_arg
         notes = []
-        frame = to_frame(new)
+        self._pair_jobs.cancel()  # the old table's counts are not wanted; let a running query end
+        self._pair_jobs.wait(60)
         if axes is not None:  # axes named at construction that the new table lacks are dropped too
-            present = {display_name(c) for c in frame.columns} | set(frame.columns)
+            labels = _column_labels(new)
+            present = {display_name(c) for c in labels} | set(labels)
             gone = [display_name(a) for a in axes if a not in present]
             axes = [a for a in axes if a in present]
             if not axes:
@@ -449,9 +660,13 @@ class AxesWidget(anywidget.AnyWidget):
                 notes.append(
                     "axes named at construction missing from the new table: " + ", ".join(map(repr, gone))
                 )
-        frame, source, columns = _prepare(new, axes, frame=frame)
-        view, more = carry_over(self._view(), self._columns, columns, len(frame))
-        self._switch(frame, source, columns, view)
+        source = _open(new, axes)
+        page_rows, rows_in = self._plan(source)
+        if rows_in is None:
+            view, more = carry_over(self._view(), self._columns, source.columns, page_rows)
+        else:
+            view, more = carry_over(self._view(), self._columns, source.columns, page_rows, rows_in, source.n)
+        self._switch(source, view)
         notes += more
         if notes:
             warnings.warn("axeswidget: the new data changes the view: " + "; ".join(notes), stacklevel=2)
@@ -465,7 +680,10 @@ class AxesWidget(anywidget.AnyWidget):
         sample is used; ``result.attrs`` says whether the result is exact. The measures read the axes as
         the widget classified them (category axes by their label codes, in axis order).
         """
-        return measures.association(self._columns, metric, max_rows=max_rows, seed=seed)
+        if self._source.in_memory:
+            return measures.association(self._columns, metric, max_rows=max_rows, seed=seed)
+        table = scaletier.sample_frame(self._source, self._sample)  # engine tables: their sample rows
+        return measures.association(table, metric, max_rows=max_rows, seed=seed)
 
     def reorder(self, metric: str = "spearman", *, maximize: bool = True, first: str | None = None, **kw):
         """Choose the axis order from an association metric, apply it and return it.
@@ -551,8 +769,9 @@ class AxesWidget(anywidget.AnyWidget):
 
         ``frame.query(w.to_query())`` gives the same rows as ``w.selected`` for a pandas frame.
         """
+        self._need_rows("to_query()")
         try:
-            return to_query(self.ranges, self._columns, list(self._frame.columns))
+            return to_query(self.ranges, self._columns, list(self._source.frame.columns))
         except SelectionError as err:
             raise ValueError(str(err)) from None
 
@@ -582,7 +801,8 @@ class AxesWidget(anywidget.AnyWidget):
             raise KeyError(
                 f"no saved selection {name!r}; saved: {', '.join(map(repr, self.saved)) or 'none'}"
             )
-        return MaskEvaluator(self._columns, len(self._frame)).update(self.saved[name])
+        self._need_rows("group_mask()")
+        return self._source.mask_of(self.saved[name])
 
     def labels(self, *, others: str | None = None) -> pd.Series:
         """Each row's group among the kept selections, as a categorical Series on the data's index.
@@ -591,15 +811,16 @@ class AxesWidget(anywidget.AnyWidget):
         kept); a row in none gets ``others`` (missing by default). Categories are the group names in
         order (plus ``others`` when given).
         """
+        self._need_rows("labels()")
         names = list(self.saved)
-        codes = np.full(len(self._frame), -1, dtype=np.int64)
+        codes = np.full(self._source.n, -1, dtype=np.int64)
         for i, name in reversed(list(enumerate(names))):
             codes[self.group_mask(name)] = i
         cats = names + ([others] if others is not None and others not in names else [])
         if others is not None:
             codes[codes < 0] = cats.index(others)
         return pd.Series(
-            pd.Categorical.from_codes(codes, categories=cats), index=self._frame.index, name="group"
+            pd.Categorical.from_codes(codes, categories=cats), index=self._source.frame.index, name="group"
         )
 
     # -- sharing -------------------------------------------------------------------------------------
@@ -653,7 +874,8 @@ class AxesWidget(anywidget.AnyWidget):
         return contrast.compare(self._columns, self.mask, brushed=self.ranges)
 
     def __repr__(self) -> str:
-        return f"AxesWidget({len(self._columns)} axes, {self.count} of {len(self._frame)} rows selected)"
+        where = "" if self._source.in_memory else f", in {self._source.engine}"
+        return f"AxesWidget({len(self._columns)} axes, {self.count} of {self._source.n} rows selected{where})"
 
 
 class _Busy:
@@ -700,21 +922,50 @@ SAVED_GROUPS = "@saved"
 CONTRAST_MAX_ROWS = 200_000
 
 
-def _snapshot(data):
-    """The widget's own copy of the user's table object (for ``selected`` in the input's type)."""
-    mod = type(data).__module__.split(".")[0]
-    if isinstance(data, np.ndarray):
-        return data.copy()
-    if isinstance(data, dict):
-        return {k: np.array(v, copy=True) for k, v in data.items()}
-    if mod == "polars":
-        return data.clone()  # polars copies on write: later in-place edits of the user's frame stay theirs
-    return data  # pyarrow tables and record batches cannot be edited in place
+_FILE_SUFFIXES = (".parquet", ".pq", ".csv", ".tsv", ".txt", ".gz")
 
 
-def _prepare(data, axes, names=None, frame=None):
-    """Read and encode a table without touching any widget: (frame, source snapshot, columns)."""
-    frame = to_frame(data, names) if frame is None else frame
-    columns = encode_frame(frame, axes)
-    source = None if isinstance(data, pd.DataFrame) else _snapshot(data)
-    return frame, source, columns
+def _is_paths(data) -> bool:
+    return isinstance(data, str | os.PathLike) or (
+        isinstance(data, list | tuple) and bool(data) and all(isinstance(p, str | os.PathLike) for p in data)
+    )
+
+
+def _check_path_text(data) -> None:
+    """A text that names no file and does not look like a path is a mistake, not a missing file."""
+    if not isinstance(data, str):
+        return
+    looks_like_path = (
+        os.path.exists(data)
+        or any(ch in data for ch in "*?[")
+        or os.sep in data
+        or "/" in data
+        or data.lower().endswith(_FILE_SUFFIXES)
+    )
+    if not looks_like_path:
+        raise TypeError(
+            f"axeswidget: cannot read a table from str {data!r}; give a DataFrame or table, or a path, "
+            "folder or glob of Parquet/CSV files (e.g. 'data/*.parquet')"
+        )
+
+
+def _open(data, axes, names=None) -> DataSource:
+    """The data source of a table, a path of files or an engine table (see ``sources.open_source``)."""
+    if _is_paths(data):
+        _check_path_text(data)
+    return open_source(data, axes, names)
+
+
+def _column_labels(data) -> list:
+    """The column labels of a table without reading its rows (files: their schema)."""
+    if isinstance(data, DataSource):
+        return [c.source for c in data.columns.values()]
+    if _is_paths(data):
+        _check_path_text(data)
+        from .sources.duckdb_source import read_files
+
+        return list(read_files(data)[0].columns)
+    try:
+        return list(nw.from_native(data).columns)
+    except TypeError:
+        return list(to_frame(data).columns)

@@ -34,7 +34,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from ..density import MAX_PAIR_BINS, _check_bins, _count, bin_codes
+from ..density import MAX_PAIR_BINS, _check_bins, bin_codes
 from ..encode import CATEGORY_BAND_LIMIT, CODE_MISSING, Column
 from ..selection import Ranges
 
@@ -130,11 +130,6 @@ def axis_bins(col: Column, codes: np.ndarray, bins: int) -> np.ndarray:
     return b.astype(np.uint16)
 
 
-def count_pairs(binned: Sequence[np.ndarray], bins: int) -> list[np.ndarray]:
-    """One ``(bins + 1)^2`` count matrix per neighbouring pair of binned axes."""
-    return [_count(left, right, bins) for left, right in zip(binned[:-1], binned[1:], strict=False)]
-
-
 class DataSource(abc.ABC):
     """One table shown on the axes. Subclasses: MemorySource, DuckDBSource, SparkSource."""
 
@@ -163,7 +158,18 @@ class DataSource(abc.ABC):
     def sample(self, k: int, seed: int = 0) -> Sample:
         """Codes and values of ``min(k, n)`` rows chosen by ``seed`` (the same rows for the same seed)."""
 
+    def background(self) -> DataSource:
+        """The source to query from a background thread (itself unless the engine needs another handle)."""
+        return self
+
     # -- selection -------------------------------------------------------------------------------------
+    def prepare(self, ranges: Ranges) -> None:
+        """Evaluate a selection ahead (so that a failure is raised before anything changes).
+
+        The next :meth:`count`/:meth:`mask` of the same selection reuses the work.
+        """
+        return None  # noqa: B027 (optional hook: sources without work to do ahead keep it)
+
     @abc.abstractmethod
     def count(self, ranges: Ranges) -> int:
         """Exact number of rows in a normalised selection."""

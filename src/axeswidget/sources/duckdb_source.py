@@ -16,9 +16,11 @@ structs, maps, blobs, UUIDs, times and other types are skipped with one warning,
 
 from __future__ import annotations
 
+import copy
 import glob
 import os
 import re
+import threading
 import uuid
 
 import pandas as pd
@@ -53,6 +55,35 @@ def find_files(path) -> list[str]:
     return found
 
 
+_RELATION_LOCK = threading.RLock()
+
+
+def _quiet(connection):
+    """A connection of the widget's own: no progress bar printed into the notebook by its queries."""
+    connection.execute("SET enable_progress_bar = false")
+    return connection
+
+
+def read_files(path, connection=None):
+    """``(relation, connection, description)`` of Parquet or CSV files; nothing is read but the schema."""
+    import duckdb
+
+    files = find_files(path)
+    con = connection if connection is not None else _quiet(duckdb.connect())
+    csv = [f for f in files if f.lower().endswith(_CSV)]
+    where = f"files {path!r}" if len(files) > 1 else f"file {files[0]!r}"
+    try:
+        if csv and len(csv) == len(files):
+            relation = con.read_csv(files)
+        elif csv:
+            raise SourceError(f"axeswidget: {path!r} mixes CSV and Parquet files; open one kind at once")
+        else:
+            relation = con.read_parquet(files)
+    except duckdb.Error as err:
+        raise EngineError(f"axeswidget: DuckDB cannot read {where}: {err}") from err
+    return relation, con, where
+
+
 class DuckDBSource(SqlSource):
     """A DuckDB relation (or files opened with :meth:`open_files`) as a data source."""
 
@@ -68,38 +99,58 @@ class DuckDBSource(SqlSource):
         self.native = relation
         self.connection = connection
         self.where = where or "a DuckDB relation"
+        self.files = None  # the path given to open_files (the background worker reopens it)
+        # a DuckDB connection runs one query at a time; the connection of a relation is not known, so
+        # every relation source takes turns on one lock (files get their own connection and lock)
+        self._lock = _RELATION_LOCK if connection is None else threading.RLock()
+        self._worker = None
         self._table = f"axeswidget_{uuid.uuid4().hex[:12]}"  # the relation's name inside the queries
         self._open(axes)
 
     @classmethod
     def open_files(cls, path, axes=None, *, connection=None) -> DuckDBSource:
         """Open Parquet or CSV files (a path, folder, glob or list) with DuckDB, out of core."""
-        import duckdb
+        relation, con, where = read_files(path, connection)
+        source = cls(relation, axes, connection=con, where=where)
+        source.files = path
+        return source
 
-        files = find_files(path)
-        con = connection if connection is not None else duckdb.connect()
-        csv = [f for f in files if f.lower().endswith(_CSV)]
-        where = f"files {path!r}" if len(files) > 1 else f"file {files[0]!r}"
-        try:
-            if csv and len(csv) == len(files):
-                relation = con.read_csv(files)
-            elif csv:
-                raise SourceError(f"axeswidget: {path!r} mixes CSV and Parquet files; open one kind at once")
-            else:
-                relation = con.read_parquet(files)
-        except duckdb.Error as err:
-            raise EngineError(f"axeswidget: DuckDB cannot read {where}: {err}") from err
-        return cls(relation, axes, connection=con, where=where)
+    @property
+    def shares_connection(self) -> bool:
+        """True when background queries run on the user's own connection (a relation the user made)."""
+        return self.files is None or self.connection is None
+
+    def background(self) -> DuckDBSource:
+        """The source for queries from another thread.
+
+        Files opened here are read again on a cursor of the connection (its own connection to the
+        same database), so background queries never wait for, or block, the ones of the notebook. A
+        relation the user made is tied to its connection: background queries take turns with the
+        widget's own (one lock); the user's own queries on that connection while one runs get
+        DuckDB's "connection is busy" error.
+        """
+        if self.files is None or self.connection is None:
+            return self
+        if self._worker is None:
+            worker = copy.copy(self)
+            cursor = _quiet(self.connection.cursor())
+            worker.native = read_files(self.files, cursor)[0]
+            worker.connection, worker._lock, worker._worker = cursor, threading.RLock(), None
+            self._worker = worker
+        return self._worker
 
     # -- engine hooks ------------------------------------------------------------------------------------
     def _rows(self, sql: str) -> list[tuple]:
-        return self.native.query(self._table, sql).fetchall()
+        with self._lock:
+            return self.native.query(self._table, sql).fetchall()
 
     def _frame(self, sql: str) -> pd.DataFrame:
-        return self.native.query(self._table, sql).df()
+        with self._lock:
+            return self.native.query(self._table, sql).df()
 
     def _schema(self):
-        return [(n, str(t), t) for n, t in zip(self.native.columns, self.native.types, strict=True)]
+        with self._lock:
+            return [(n, str(t), t) for n, t in zip(self.native.columns, self.native.types, strict=True)]
 
     def _timezone(self) -> str | None:
         rows = self._run("reading the time zone", self._rows, "SELECT current_setting('TimeZone')")
@@ -134,10 +185,14 @@ class DuckDBSource(SqlSource):
         return list(self._run(f"reading the labels of enum column {col.name!r}", self._rows, sql)[0][0])
 
     def _schema_types(self):
-        return [(n, str(t)) for n, t in zip(self.native.columns, self.native.types, strict=True)]
+        with self._lock:
+            return [(n, str(t)) for n, t in zip(self.native.columns, self.native.types, strict=True)]
 
     # -- rows ------------------------------------------------------------------------------------------
     def selected(self, ranges):
         """The relation filtered by the selection (lazy: a DuckDB relation, nothing fetched)."""
         where = self.filter_sql(ranges)
-        return self.native if where == "TRUE" else self.native.filter(where)
+        if where == "TRUE":
+            return self.native
+        with self._lock:
+            return self.native.filter(where)

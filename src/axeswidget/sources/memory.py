@@ -14,10 +14,11 @@ import narwhals as nw
 import numpy as np
 import pandas as pd
 
+from ..density import count_bin_pairs
 from ..encode import encode_frame, to_frame
 from ..evaluate import MaskEvaluator
 from ..selection import Ranges
-from .base import DataSource, Sample, axis_bins, check_ranges, count_pairs
+from .base import DataSource, Sample, axis_bins, check_ranges
 from .expressions import selection_expression
 
 
@@ -40,17 +41,22 @@ def take_rows(native, frame: pd.DataFrame, mask: np.ndarray):
     return table.filter(nw.new_series("mask", mask, nw.Boolean, backend=table.implementation)).to_native()
 
 
-def eager_frame(data, names=None) -> pd.DataFrame:
-    """A pandas frame from any eager table (narwhals reads the types ``encode.to_frame`` does not)."""
-    try:
-        return to_frame(data, names)
-    except TypeError:
-        pass
+def snapshot(data):
+    """The source's own copy of the user's table object (for ``selected`` in the input's type).
+
+    numpy arrays and dicts of arrays are copied, eager tables narwhals reads are cloned (polars copies
+    on write), so later in-place edits of the user's object stay theirs; pandas frames are read
+    copy-on-write by ``to_frame``.
+    """
+    if isinstance(data, np.ndarray):
+        return data.copy()
+    if isinstance(data, dict):
+        return {k: np.array(v, copy=True) for k, v in data.items()}
     try:
         table = nw.from_native(data, eager_only=True)
     except TypeError:
-        return to_frame(data, names)  # raises the usual clear error
-    return table.to_pandas()
+        return data  # Arrow streams and record batches cannot be edited in place
+    return table.clone().to_native()  # polars: a clone (copy on write); pyarrow: immutable anyway
 
 
 class MemorySource(DataSource):
@@ -60,11 +66,12 @@ class MemorySource(DataSource):
     engine = "memory"
 
     def __init__(self, data, axes=None, names=None, *, frame: pd.DataFrame | None = None, lazy=None):
-        self.native = data if lazy is None else lazy
-        self.frame = eager_frame(data, names) if frame is None else frame
+        self.frame = to_frame(data, names) if frame is None else frame
         self.columns = encode_frame(self.frame, axes)
+        self.native = (None if isinstance(data, pd.DataFrame) else snapshot(data)) if lazy is None else lazy
         self.n = len(self.frame)
         self.evaluator = MaskEvaluator(self.columns, self.n)
+        self._binned: dict[str, tuple] = {}  # axis -> (codes it was made from, bins, uint8/uint16 bins)
 
     def codes(self, axes: Sequence[str] | None = None) -> dict[str, np.ndarray]:
         return {a: self.columns[a].codes for a in self._axes(axes)}
@@ -77,20 +84,50 @@ class MemorySource(DataSource):
         rows = self.frame.iloc[positions, where]
         return Sample(codes=codes, rows=rows, positions=positions)
 
+    def prepare(self, ranges: Ranges) -> None:
+        self.evaluator.prepare(check_ranges(ranges, self.columns))
+
     def mask(self, ranges: Ranges) -> np.ndarray:
         return self.evaluator.update(check_ranges(ranges, self.columns))
+
+    def mask_of(self, ranges: Ranges) -> np.ndarray:
+        """The mask of a selection evaluated afresh (the incremental state of :meth:`mask` is kept)."""
+        return MaskEvaluator(self.columns, self.n).update(check_ranges(ranges, self.columns))
 
     def count(self, ranges: Ranges) -> int:
         return int(np.count_nonzero(self.mask(ranges)))
 
-    def pair_counts(self, order, bins: int = 128, ranges: Ranges | None = None) -> list[np.ndarray]:
+    def bins_of(self, axis: str, bins: int) -> np.ndarray:
+        """Pair-count bin of every row of one axis (cached per axis until its codes change).
+
+        uint8 while ``bins < 255`` (the density view's 128 bins): an eighth of the float64 values.
+        """
+        col = self.columns[axis]
+        cached = self._binned.get(axis)
+        if cached is not None and cached[0] is col.codes and cached[1] == bins:
+            return cached[2]
+        binned = axis_bins(col, col.codes, bins)
+        if bins < 255:
+            binned = binned.astype(np.uint8)
+        self._binned[axis] = (col.codes, bins, binned)
+        return binned
+
+    def pair_counts(
+        self, order, bins: int = 128, ranges: Ranges | None = None, *, mask: np.ndarray | None = None
+    ) -> list[np.ndarray]:
+        """As :meth:`DataSource.pair_counts`; ``mask`` (the selection already evaluated) skips the evaluation.
+
+        One pair at a time, in blocks of rows (:func:`axeswidget.density.count_bin_pairs`): no n-length
+        index array, no compacted copy of the selected rows.
+        """
         order, bins = self._order(order, bins)
-        mask = None if not ranges else self.mask(ranges)
-        binned = []
-        for axis in order:
-            b = axis_bins(self.columns[axis], self.columns[axis].codes, bins)
-            binned.append(b if mask is None else b[mask])
-        return count_pairs(binned, bins)
+        if mask is None and ranges:
+            mask = self.mask(ranges)
+        binned = [self.bins_of(axis, bins) for axis in order]
+        return [
+            count_bin_pairs(left, right, bins, mask)
+            for left, right in zip(binned[:-1], binned[1:], strict=True)
+        ]
 
     def float_axes(self) -> set[str]:
         return {

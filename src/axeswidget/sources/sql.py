@@ -357,8 +357,19 @@ class SqlSource(DataSource):
         return selection_expression(check_ranges(ranges, self.columns), self.columns, floats)
 
     # -- protocol ------------------------------------------------------------------------------------------
+    def prepare(self, ranges: Ranges) -> None:
+        """Count the selection now (an engine error is raised here); :meth:`count` then reuses it."""
+        where = self.filter_sql(ranges)
+        self._counted = (where, self._count_where(where))
+
     def count(self, ranges: Ranges) -> int:
         where = self.filter_sql(ranges)
+        counted = getattr(self, "_counted", None)
+        if counted is not None and counted[0] == where:
+            return counted[1]
+        return self._count_where(where)
+
+    def _count_where(self, where: str) -> int:
         if where == "TRUE":
             return self.n
         sql = f"SELECT count(*) FROM {self._table} WHERE {where}"
