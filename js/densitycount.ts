@@ -10,8 +10,10 @@
 
 import { CODE_MISSING, densityBins, HIST_BINS, histBin } from "./wire";
 
-/** Rows per piece of counting work between two chances to yield to the page. */
-const BLOCK = 1 << 15;
+/** Rows per piece of counting work (every pair) between two chances to yield to the page. */
+const BLOCK = 1 << 14;
+/** Rows per piece of a plain pass over the mask. */
+const SCAN = 1 << 18;
 
 const lutCache = new Map<string, Uint8Array | Uint16Array>();
 
@@ -170,37 +172,52 @@ export class DensityCounts {
   /** Update `sel` for a new mask with the least work (see the module comment). */
   private async countSelected(old: Uint8Array | null | undefined, mask: Uint8Array, breathe: Breathe): Promise<boolean> {
     const { n } = this.spec!;
+    // every pass over the rows goes in blocks, with a chance to yield between them
+    const scan = async (body: (i0: number, i1: number) => boolean | void): Promise<boolean> => {
+      for (let i0 = 0; i0 < n; i0 += SCAN) {
+        if (body(i0, Math.min(n, i0 + SCAN)) === false) return true;
+        if (i0 + SCAN < n && !(await breathe())) return false;
+      }
+      return true;
+    };
     let on = 0;
-    for (let i = 0; i < n; i++) on += mask[i];
+    if (!(await scan((i0, i1) => {
+      for (let i = i0; i < i1; i++) on += mask[i];
+    }))) return false;
     const fromZero = Math.min(on, n - on);
     let changed = Infinity;
-    if (old !== undefined) {
+    if (old === null) changed = n - on;
+    else if (old !== undefined) {
       // rows whose membership changed since the counts kept; give up once it is not the cheapest way
       changed = 0;
-      if (old === null) changed = n - on;
-      else for (let i = 0; i < n && changed <= fromZero; i++) changed += old[i] ^ mask[i];
+      if (!(await scan((i0, i1) => {
+        for (let i = i0; i < i1; i++) changed += old[i] ^ mask[i];
+        return changed <= fromZero;
+      }))) return false;
     }
     if (this.scratch.length < n) this.scratch = new Int32Array(n);
     const rows = this.scratch;
     let m = 0;
-    let sign: Int8Array | null = null;
     if (changed <= fromZero) {
       // move the changed rows: +1 where they joined, -1 where they left
-      const base = this.sel === this.all ? this.all.map((c) => c.slice()) : this.sel;
-      this.sel = base;
-      sign = new Int8Array(changed);
-      for (let i = 0; i < n; i++) {
-        const was = old ? old[i] : 1;
-        if (was !== mask[i]) {
-          sign[m] = mask[i] ? 1 : -1;
-          rows[m++] = i;
+      if (this.sel === this.all) this.sel = this.all.map((c) => c.slice());
+      const sign = new Int8Array(changed);
+      if (!(await scan((i0, i1) => {
+        for (let i = i0; i < i1; i++) {
+          const was = old ? old[i] : 1;
+          if (was !== mask[i]) {
+            sign[m] = mask[i] ? 1 : -1;
+            rows[m++] = i;
+          }
         }
-      }
+      }))) return false;
       this.lastWork = { rows: m, how: "changed" };
       return this.addRows(rows, m, sign, breathe);
     }
     const want = on <= n - on ? 1 : 0;
-    for (let i = 0; i < n; i++) if (mask[i] === want) rows[m++] = i;
+    if (!(await scan((i0, i1) => {
+      for (let i = i0; i < i1; i++) if (mask[i] === want) rows[m++] = i;
+    }))) return false;
     const size = this.spec!.groups * this.cells;
     this.sel = this.all.map(() => new Uint32Array(size));
     this.lastWork = { rows: m, how: want ? "selected" : "left out" };

@@ -79,6 +79,9 @@ interface Pass {
 /** Bins per axis in the density view (the wire contract's, as in density.py). */
 export const BINS = DENSITY_BINS;
 const CHUNK_MS = 14;
+/** The density view and the final picture work in shorter slices (they run while a range is dragged). */
+const SLICE_MS = 8;
+const SHOW_ROWS = 64;
 /** Tables with at least this many cells (rows x axes) are drawn by Web Workers in lines mode. */
 const WORKER_CELLS = 400_000;
 const SHOW_MS = 180;
@@ -163,8 +166,8 @@ export class LinePainter {
     let shown = t0;
     let chunk = 2048;
 
-    const show = () => {
-      compose(fad, sel, image, fadedGain, gain, job.mask !== null);
+    const show = (composed = false) => {
+      if (!composed) compose(fad, sel, image, fadedGain, gain, job.mask !== null);
       if (!job.transpose) {
         ctx.putImageData(image, 0, 0);
         return;
@@ -205,7 +208,17 @@ export class LinePainter {
       if (!ok || token !== this.token) return;
       if (pass.bundle) bundle = { ...pass.bundle, centres: pass.bundle.centres.map((y) => y / job.dpr) };
     }
-    show();
+    // the finished picture is tone-mapped a band of rows at a time (a big canvas is a long task at once)
+    let slice = performance.now();
+    for (let y0 = 0; y0 < H; y0 += SHOW_ROWS) {
+      compose(fad, sel, image, fadedGain, gain, job.mask !== null, y0, Math.min(H, y0 + SHOW_ROWS));
+      if (y0 + SHOW_ROWS < H && performance.now() - slice >= SLICE_MS) {
+        await yieldToPage();
+        if (token !== this.token) return;
+        slice = performance.now();
+      }
+    }
+    show(true);
     this.onProgress(null);
     this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers, bundle });
   }
@@ -294,7 +307,7 @@ export class LinePainter {
     const token = this.token;
     let slice = performance.now();
     const breathe = async () => {
-      if (performance.now() - slice >= CHUNK_MS) {
+      if (performance.now() - slice >= SLICE_MS) {
         await yieldToPage();
         slice = performance.now();
       }
@@ -306,6 +319,10 @@ export class LinePainter {
     const categorical = job.scales.map((sc) => isCategorical(sc.axis));
     const spec: CountSpec = { n: job.table.n, codes, categorical, bins: BINS, group: groups.group, groups: groups.count, key: [job.table] };
     const counts = this.counts;
+    // counting starts in a task of its own (the overlay and the status are drawn in this one)
+    await yieldToPage();
+    if (token !== this.token) return false;
+    slice = performance.now();
     if (!(await counts.prepare(spec, job.mask, breathe))) return false;
     counts.histAll.forEach((h, a) => histAll[a].set(h));
     counts.histSel.forEach((h, a) => histSelected[a].set(h));
@@ -452,14 +469,15 @@ export function transpose(src: ImageData, dst: ImageData) {
   }
 }
 
-/** Selected layer over faded layer (straight alpha), into `image`. */
-export function compose(fad: Accumulator, sel: Accumulator, image: ImageData, fadedGain: number, gain: number, fadedUsed = true) {
+/** Selected layer over faded layer (straight alpha), into `image` (rows y0..y1-1 when given). */
+export function compose(fad: Accumulator, sel: Accumulator, image: ImageData, fadedGain: number, gain: number, fadedUsed = true, y0 = 0, y1 = image.height) {
   const out = image.data;
   const tmp = compose.buffer.length === out.length ? compose.buffer : (compose.buffer = new Uint8ClampedArray(out.length));
-  if (fadedUsed) fad.resolve(out, fadedGain);
-  else out.fill(0);
-  sel.resolve(tmp, gain);
-  for (let p = 0; p < out.length; p += 4) {
+  const row = image.width * 4;
+  if (fadedUsed) fad.resolve(out, fadedGain, y0, y1);
+  else out.fill(0, y0 * row, y1 * row);
+  sel.resolve(tmp, gain, y0, y1);
+  for (let p = y0 * row, end = y1 * row; p < end; p += 4) {
     const as = tmp[p + 3];
     if (!as) continue;
     if (as === 255 || !out[p + 3]) {

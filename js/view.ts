@@ -297,7 +297,8 @@ export class View {
       table: this.table,
       layout,
       scales: this.scales(),
-      place: this.placement(),
+      // the density view does not place rows (hover computes the placement when it needs it)
+      place: mode === "lines" ? this.placement() : [],
       spread: this.spread,
       mask: shown.mask,
       colouring: scaleTier ? { group: null, palette: [line], legend: { kind: "none" } } : this.colouringNow(),
