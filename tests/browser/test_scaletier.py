@@ -77,7 +77,9 @@ def scale_case():
     bins = {name: density_bins(full_codes[name]) for name in full_codes}
     state = copy.copy(w.get_state())
     table = dict(state["table"])
-    table["columns"] = [dict(col, codes=full_codes[col["name"]][sample].tobytes()) for col in table["columns"]]
+    table["columns"] = [
+        dict(col, codes=full_codes[col["name"]][sample].tobytes()) for col in table["columns"]
+    ]
     table.update(n=K, total=N, sampled=True)
     rho = stats.spearmanr(df).statistic  # reference: scipy.stats.spearmanr over all N rows
     values = [[float(v) for v in row] for row in rho]
@@ -118,7 +120,9 @@ def apply(s, state: dict):
 
 def lines_alpha(s, x: float, y: float, r: int = 2) -> int:
     """Largest alpha of the lines canvas in a small square around a page point."""
-    return max(s.pixel(x + dx, y + dy, canvas="axw-lines")[3] for dx in range(-r, r + 1) for dy in range(-r, r + 1))
+    return max(
+        s.pixel(x + dx, y + dy, canvas="axw-lines")[3] for dx in range(-r, r + 1) for dy in range(-r, r + 1)
+    )
 
 
 def wait_drawn(s, after: int):
@@ -159,7 +163,9 @@ def test_scale_tier_draws_kernel_counts_estimates_while_dragging_then_exact(show
     s.page.mouse.move(xa, s.y_of("a", 0.99), steps=6)
     s.settle()
     text = status.inner_text()
-    assert text.startswith("≈ ") and text.endswith("of 200,000 rows selected (estimate from a 20,000-row sample)")
+    assert text.startswith("≈ ") and text.endswith(
+        "of 200,000 rows selected (estimate from a 20,000-row sample)"
+    )
     s.page.mouse.up()
     wait_drawn(s, before)
     assert root.get_attribute("data-state") == "preview"
@@ -243,7 +249,9 @@ def show_binary(browser, server, widget, name: str, before_goto=None):
     for k, buf in enumerate(buffers):
         (folder / f"buf{k}.bin").write_bytes(bytes(buf))
         files.append(f"buf{k}.bin")
-    (folder / "state.json").write_text(json.dumps({"state": clean, "buffer_paths": paths, "buffer_files": files}))
+    (folder / "state.json").write_text(
+        json.dumps({"state": clean, "buffer_paths": paths, "buffer_files": files})
+    )
     page = browser.new_page(viewport={"width": 940, "height": 520})
     errors: list[str] = []
     page.on("pageerror", lambda e: errors.append(str(e)))
@@ -309,7 +317,9 @@ def test_no_long_task_in_first_picture_and_drag_at_a_million_rows(browser, stati
         s.pull_from_kernel()
         s.drag("c08", 2.0, -0.5, steps=15)
         page.wait_for_function(
-            "(n) => Number(document.querySelector('.axw-root').dataset.drawn ?? 0) >= n", arg=3, timeout=30_000
+            "(n) => Number(document.querySelector('.axw-root').dataset.drawn ?? 0) >= n",
+            arg=3,
+            timeout=30_000,
         )
         s.settle()
         page.wait_for_timeout(300)
