@@ -59,6 +59,8 @@ export interface PaintResult {
   histAll: Uint32Array[];
   /** the bundling the lines were drawn with (centres in CSS px per gap and slot), for hovering */
   bundle: { axis: number; strength: number; centres: Float64Array } | null;
+  /** density view: milliseconds spent bringing the pair counts up to date (yields included) */
+  countMs?: number;
 }
 
 /** What one painting pass works with. */
@@ -72,6 +74,8 @@ interface Pass {
   histAll: Uint32Array[];
   /** set by the lines pass when it bundles (centres in device px) */
   bundle: LinesSetup["bundle"];
+  /** set by the density pass: milliseconds of counting */
+  countMs?: number;
   /** run a body over all rows in chunks; false when the job was abandoned */
   chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>;
 }
@@ -201,12 +205,14 @@ export class LinePainter {
     };
 
     let bundle: PaintResult["bundle"] = null;
+    let countMs: number | undefined;
     if (k >= 2 && n > 0) {
       const xs = new Float32Array(job.layout.slots.map((s) => s.x * job.dpr));
       const pass: Pass = { job, codes, xs, sel, fad, histSelected, histAll, bundle: null, chunked };
       const ok = job.mode === "density" ? await this.density(pass) : await this.lines(pass);
       if (!ok || token !== this.token) return;
       if (pass.bundle) bundle = { ...pass.bundle, centres: pass.bundle.centres.map((y) => y / job.dpr) };
+      countMs = pass.countMs;
     }
     // the finished picture is tone-mapped a band of rows at a time (a big canvas is a long task at once)
     let slice = performance.now();
@@ -220,7 +226,7 @@ export class LinePainter {
     }
     show(true);
     this.onProgress(null);
-    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers, bundle });
+    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers, bundle, countMs });
   }
 
   private async lines(pass: Pass): Promise<boolean> {
@@ -323,7 +329,9 @@ export class LinePainter {
     await yieldToPage();
     if (token !== this.token) return false;
     slice = performance.now();
+    const c0 = performance.now();
     if (!(await counts.prepare(spec, job.mask, breathe))) return false;
+    pass.countMs = performance.now() - c0;
     counts.histAll.forEach((h, a) => histAll[a].set(h));
     counts.histSel.forEach((h, a) => histSelected[a].set(h));
     const drawPair = (acc: Accumulator, a: number, weights: ArrayLike<number>, offset: number, bins: number, colour: RGB, transposed = false) => {
