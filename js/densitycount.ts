@@ -154,15 +154,11 @@ export class DensityCounts {
     const off = group ? new Int32Array(Math.min(n, BLOCK)) : null;
     for (let i0 = 0; i0 < n; i0 += BLOCK) {
       const i1 = Math.min(n, i0 + BLOCK);
-      if (off) for (let i = i0; i < i1; i++) off[i - i0] = group![i] * cells;
+      // the loops live in plain functions: V8 optimises a hot loop inside an async function late
+      if (off) groupOffsets(group!, cells, off, i0, i1);
       for (let a = 0; a + 1 < codes.length; a++) {
-        const la = luts[a];
-        const lb = luts[a + 1];
-        const ca = codes[a];
-        const cb = codes[a + 1];
-        const cnt = this.all[a];
-        if (off) for (let i = i0; i < i1; i++) cnt[off[i - i0] + la[ca[i]] * B1 + lb[cb[i]]]++;
-        else for (let i = i0; i < i1; i++) cnt[la[ca[i]] * B1 + lb[cb[i]]]++;
+        if (off) countGrouped(this.all[a], luts[a], luts[a + 1], codes[a], codes[a + 1], B1, off, i0, i1);
+        else countPairs(this.all[a], luts[a], luts[a + 1], codes[a], codes[a + 1], B1, i0, i1);
       }
       if (i1 < n && !(await breathe())) return false;
     }
@@ -182,7 +178,9 @@ export class DensityCounts {
     };
     let on = 0;
     if (!(await scan((i0, i1) => {
-      for (let i = i0; i < i1; i++) on += mask[i];
+      let c = 0; // a local in the loop (the captured variable once per block)
+      for (let i = i0; i < i1; i++) c += mask[i];
+      on += c;
     }))) return false;
     const fromZero = Math.min(on, n - on);
     let changed = Infinity;
@@ -191,7 +189,9 @@ export class DensityCounts {
       // rows whose membership changed since the counts kept; give up once it is not the cheapest way
       changed = 0;
       if (!(await scan((i0, i1) => {
-        for (let i = i0; i < i1; i++) changed += old[i] ^ mask[i];
+        let c = 0;
+        for (let i = i0; i < i1; i++) c += old[i] ^ mask[i];
+        changed += c;
         return changed <= fromZero;
       }))) return false;
     }
@@ -203,20 +203,24 @@ export class DensityCounts {
       if (this.sel === this.all) this.sel = this.all.map((c) => c.slice());
       const sign = new Int8Array(changed);
       if (!(await scan((i0, i1) => {
+        let j = m;
         for (let i = i0; i < i1; i++) {
           const was = old ? old[i] : 1;
           if (was !== mask[i]) {
-            sign[m] = mask[i] ? 1 : -1;
-            rows[m++] = i;
+            sign[j] = mask[i] ? 1 : -1;
+            rows[j++] = i;
           }
         }
+        m = j;
       }))) return false;
       this.lastWork = { rows: m, how: "changed" };
       return this.addRows(rows, m, sign, breathe);
     }
     const want = on <= n - on ? 1 : 0;
     if (!(await scan((i0, i1) => {
-      for (let i = i0; i < i1; i++) if (mask[i] === want) rows[m++] = i;
+      let j = m;
+      for (let i = i0; i < i1; i++) if (mask[i] === want) rows[j++] = i;
+      m = j;
     }))) return false;
     const size = this.spec!.groups * this.cells;
     this.sel = this.all.map(() => new Uint32Array(size));
@@ -241,16 +245,7 @@ export class DensityCounts {
     for (let j0 = 0; j0 < m; j0 += BLOCK) {
       const j1 = Math.min(m, j0 + BLOCK);
       for (let a = 0; a + 1 < codes.length; a++) {
-        const la = luts[a];
-        const lb = luts[a + 1];
-        const ca = codes[a];
-        const cb = codes[a + 1];
-        const cnt = this.sel[a];
-        for (let j = j0; j < j1; j++) {
-          const i = rows[j];
-          const cell = (group ? group[i] * cells : 0) + la[ca[i]] * B1 + lb[cb[i]];
-          cnt[cell] += sign ? sign[j] : 1;
-        }
+        addPairRows(this.sel[a], luts[a], luts[a + 1], codes[a], codes[a + 1], B1, cells, group, rows, sign, j0, j1);
       }
       if (j1 < m && !(await breathe())) return false;
     }
@@ -285,5 +280,44 @@ export class DensityCounts {
         }
       }
     });
+  }
+}
+
+type Lut = Uint8Array | Uint16Array;
+
+/** Offset of each row's colour group in a pair's counts, rows i0..i1-1 (into off[0..]). */
+function groupOffsets(group: Uint8Array, cells: number, off: Int32Array, i0: number, i1: number) {
+  for (let i = i0; i < i1; i++) off[i - i0] = group[i] * cells;
+}
+
+/** One pair, rows i0..i1-1: the bare bincount loop. */
+function countPairs(cnt: Uint32Array, la: Lut, lb: Lut, ca: Uint16Array, cb: Uint16Array, B1: number, i0: number, i1: number) {
+  for (let i = i0; i < i1; i++) cnt[la[ca[i]] * B1 + lb[cb[i]]]++;
+}
+
+/** One pair, rows i0..i1-1, each row into its colour group's counts. */
+function countGrouped(cnt: Uint32Array, la: Lut, lb: Lut, ca: Uint16Array, cb: Uint16Array, B1: number, off: Int32Array, i0: number, i1: number) {
+  for (let i = i0; i < i1; i++) cnt[off[i - i0] + la[ca[i]] * B1 + lb[cb[i]]]++;
+}
+
+/** One pair: add (or take away, by sign) the rows listed in rows[j0..j1-1]. */
+function addPairRows(
+  cnt: Uint32Array,
+  la: Lut,
+  lb: Lut,
+  ca: Uint16Array,
+  cb: Uint16Array,
+  B1: number,
+  cells: number,
+  group: Uint8Array | null,
+  rows: Int32Array,
+  sign: Int8Array | null,
+  j0: number,
+  j1: number,
+) {
+  for (let j = j0; j < j1; j++) {
+    const i = rows[j];
+    const cell = (group ? group[i] * cells : 0) + la[ca[i]] * B1 + lb[cb[i]];
+    cnt[cell] += sign ? sign[j] : 1;
   }
 }

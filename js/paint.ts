@@ -363,39 +363,18 @@ export class LinePainter {
       if (kp && (job.mask === null || (kernel!.selectedFresh && kp.selected) || kp.bins === BINS)) {
         // the kernel's counts over every row; the selected ones are its own once they answer the latest
         // edit, else scaled up from the sample (never more than the cell holds)
-        const kcells = (kp.bins + 1) * (kp.bins + 1);
         const exact = job.mask === null ? kp.all : kernel!.selectedFresh ? kp.selected : null;
-        const kfaded = new Float32Array(kcells);
-        const ksel = new Float32Array(kcells);
-        for (let c = 0; c < kcells; c++) {
-          const total = kp.all[c];
-          let s: number;
-          if (exact) s = Math.min(total, exact[c]);
-          else {
-            // sample cell of the same (left, right) bins: the kernel's cell c may be transposed
-            const B1 = kp.bins + 1;
-            const q = (c / B1) | 0;
-            const sc = kp.transposed ? (c - q * B1) * B1 + q : c;
-            s = Math.min(total, Math.round(got[sc] * scale));
-          }
-          ksel[c] = s;
-          kfaded[c] = total - s;
-        }
+        const { ksel, kfaded } = kernelLayers(kp, exact, got, scale);
         drawPair(fad, a, kfaded, 0, kp.bins, job.faded, kp.transposed);
         if (!(await breathe())) return false;
         drawPair(sel, a, ksel, 0, kp.bins, groups.colour(0, job.colouring), kp.transposed);
       } else {
         // counted here: rows left out (faded, all groups together), selected rows per colour group
-        for (let c = 0; c < cells; c++) {
-          let f = 0;
-          for (let g = 0, o = c; g < groups.count; g++, o += cells) f += all[o] - got[o];
-          faded[c] = f * scale;
-        }
+        fadedLayer(all, got, groups.count, cells, scale, faded);
         drawPair(fad, a, faded, 0, BINS, job.faded);
         if (!(await breathe())) return false;
         for (let g = 0; g < groups.count; g++) {
-          const o = g * cells;
-          for (let c = 0; c < cells; c++) chosen[c] = got[o + c] * scale;
+          scaled(got, g * cells, cells, scale, chosen);
           drawPair(sel, a, chosen, 0, BINS, groups.colour(g, job.colouring));
           if (!(await breathe())) return false;
         }
@@ -429,6 +408,45 @@ export class LinePainter {
     }
     return ys;
   }
+}
+
+/**
+ * The scale tier's layers of one pair from the kernel's counts: selected = the kernel's exact counts
+ * (`exact`), or else the sample's selected counts scaled up (never more than the cell holds); the rest
+ * faded. The sample's cell of the same (left, right) bins is read transposed when the kernel's pair is.
+ */
+function kernelLayers(kp: KernelPair, exact: Uint32Array | null, sample: Uint32Array, scale: number) {
+  const B1 = kp.bins + 1;
+  const kcells = B1 * B1;
+  const kfaded = new Float32Array(kcells);
+  const ksel = new Float32Array(kcells);
+  for (let c = 0; c < kcells; c++) {
+    const total = kp.all[c];
+    let s: number;
+    if (exact) s = Math.min(total, exact[c]);
+    else {
+      const q = (c / B1) | 0;
+      const sc = kp.transposed ? (c - q * B1) * B1 + q : c;
+      s = Math.min(total, Math.round(sample[sc] * scale));
+    }
+    ksel[c] = s;
+    kfaded[c] = total - s;
+  }
+  return { ksel, kfaded };
+}
+
+/** Rows left out of a pair's counts (all groups together), times `scale`, into `out`. */
+function fadedLayer(all: Uint32Array, got: Uint32Array, groups: number, cells: number, scale: number, out: Float32Array) {
+  for (let c = 0; c < cells; c++) {
+    let f = 0;
+    for (let g = 0, o = c; g < groups; g++, o += cells) f += all[o] - got[o];
+    out[c] = f * scale;
+  }
+}
+
+/** counts[offset..offset+cells) times `scale`, into `out`. */
+function scaled(counts: Uint32Array, offset: number, cells: number, scale: number, out: Float32Array) {
+  for (let c = 0; c < cells; c++) out[c] = counts[offset + c] * scale;
 }
 
 /** Colour groups of the density view: at most 9 (categories keep theirs; continuous values 8 levels). */
