@@ -293,6 +293,7 @@ export class View {
       kernel = { pairs: this.kernelPairs.forOrder(layout.slots.map((s) => s.name)), selectedFresh: this.sync.answers(this.kernelPairs.seq) };
     }
     const line = hexToRgb(this.theme.line);
+    const rowWeight = this.table.total / Math.max(1, this.table.n);
     return {
       table: this.table,
       layout,
@@ -303,10 +304,11 @@ export class View {
       mask: shown.mask,
       colouring: scaleTier ? { group: null, palette: [line], legend: { kind: "none" } } : this.colouringNow(),
       faded: hexToRgb(this.theme.faded),
-      opacity: userOpacity > 0 ? Math.min(1, userOpacity) : autoAlpha(shown.count),
+      // in the scale tier a sample row stands for N / k rows: the opacity of as many rows as that
+      opacity: userOpacity > 0 ? Math.min(1, userOpacity) : autoAlpha(scaleTier ? shown.count * rowWeight : shown.count),
       mode,
       kernel,
-      rowWeight: this.table.total / Math.max(1, this.table.n),
+      rowWeight,
       curves: !!this.model.get("curves"),
       bundle: bundleAxis >= 0 ? { axis: bundleAxis, strength } : null,
       dpr,
