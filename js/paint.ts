@@ -48,6 +48,8 @@ export interface PaintJob {
   kernel?: { pairs: (KernelPair | null)[]; selectedFresh: boolean } | null;
   /** rows each page row stands for (N / k in the scale tier, else 1) */
   rowWeight?: number;
+  /** an intermediate picture (a range being dragged): may wait for the drawing in progress */
+  follow?: boolean;
 }
 
 export interface PaintResult {
@@ -111,6 +113,9 @@ export class LinePainter {
   private turned: ImageData | null = null;
   private pool: WorkerPool | null = null;
   private usedWorkers = false;
+  /** the drawing in progress, and the job to draw after it (see paint) */
+  private running: { mode: Mode; token: number } | null = null;
+  private next: PaintJob | null = null;
   /** the density view's counts, kept between redraws (see densitycount.ts) */
   private counts = new DensityCounts();
   private binYKey: { scales: AxisScale[] | null; dpr: number; laneY: number } = { scales: null, dpr: 0, laneY: 0 };
@@ -124,15 +129,34 @@ export class LinePainter {
 
   /** Start painting a job; a job still running is abandoned. */
   paint(job: PaintJob): void {
+    // while a range is dragged in the density view, a drawing in progress finishes and the latest job
+    // follows it (else every pointer move would restart it and no picture would appear until the pointer
+    // rests); any other job replaces the one in progress at once
+    if (job.follow && job.mode === "density" && this.running?.mode === "density") {
+      this.next = job;
+      return;
+    }
+    this.next = null;
     const token = ++this.token;
-    this.run(job, token).catch((err) => {
-      console.error("axeswidget: drawing failed", err);
-      this.onProgress(null);
-    });
+    this.running = { mode: job.mode, token };
+    this.run(job, token)
+      .catch((err) => {
+        console.error("axeswidget: drawing failed", err);
+        this.onProgress(null);
+      })
+      .finally(() => {
+        if (this.running?.token !== token) return;
+        this.running = null;
+        const next = this.next;
+        this.next = null;
+        if (next) this.paint(next);
+      });
   }
 
   cancel() {
     this.token++;
+    this.running = null;
+    this.next = null;
   }
 
   /** Forget the density counts kept (the next density pass counts every row again; for the bench). */

@@ -307,6 +307,7 @@ export class View {
       // in the scale tier a sample row stands for N / k rows: the opacity of as many rows as that
       opacity: userOpacity > 0 ? Math.min(1, userOpacity) : autoAlpha(scaleTier ? shown.count * rowWeight : shown.count),
       mode,
+      follow: this.sync.dragging,
       kernel,
       rowWeight,
       curves: !!this.model.get("curves"),
