@@ -78,7 +78,9 @@ export function estimateOf(previewCount: number, total: number, sample: number):
   return sample > 0 ? Math.round((previewCount * total) / sample) : 0;
 }
 
-const fmt = (v: number) => v.toLocaleString("en-US");
+/** A whole number with thousands separators ("1,234,567"), as toLocaleString("en-US") writes it without
+ * the cost of starting the locale machinery on the first picture. */
+export const fmt = (v: number) => String(Math.round(v)).replace(/\B(?=(\d{3})+(?!\d))/g, ",");
 
 export interface StatusInput {
   /** the preview's count over the page's rows, or the kernel's exact count over all rows */

@@ -343,6 +343,11 @@ export class View {
       this.modeButton.textContent = job.mode === "density" ? "density ⇄ lines" : "lines ⇄ density";
       this.root.dataset.mode = job.mode;
       this.painter.paint(job);
+      if (this.drawn === 0 && this.dirtyOverlay) {
+        // first picture: the overlay and the status line in a task of their own (no long task)
+        setTimeout(() => this.invalidate(false), 0);
+        return;
+      }
     }
     if (this.dirtyOverlay) {
       this.paintOverlay(this.overlayCanvas, dpr);

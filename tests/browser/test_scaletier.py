@@ -265,7 +265,11 @@ def show_binary(browser, server, widget, name: str, before_goto=None):
 
 
 def main_thread_tasks(trace: bytes) -> list[dict]:
-    """Tasks of the page's main thread in a Chromium trace: wall and thread (CPU) milliseconds."""
+    """Tasks of the page's main thread in a Chromium trace: wall and thread (CPU) milliseconds.
+
+    A task can hold nested tasks (a module's evaluation holds the frames run before it ends): the
+    thread time of a task is its own, without the nested tasks, which are listed themselves.
+    """
     events = json.loads(trace)
     events = events["traceEvents"] if isinstance(events, dict) else events
     main = {
@@ -273,11 +277,19 @@ def main_thread_tasks(trace: bytes) -> list[dict]:
         for e in events
         if e.get("ph") == "M" and e.get("name") == "thread_name" and e["args"].get("name") == "CrRendererMain"
     }
-    return [
-        {"ms": e["dur"] / 1e3, "cpu_ms": e.get("tdur", e["dur"]) / 1e3}
-        for e in events
-        if e.get("name") == "RunTask" and e.get("ph") == "X" and (e["pid"], e["tid"]) in main and "dur" in e
-    ]
+    runs = [e for e in events if e.get("name") == "RunTask" and e.get("ph") == "X" and "dur" in e]
+    tasks = sorted((e for e in runs if (e["pid"], e["tid"]) in main), key=lambda e: (e["ts"], -e["dur"]))
+    out, open_tasks = [], []
+    for e in tasks:
+        item = {"ms": e["dur"] / 1e3, "cpu_ms": e.get("tdur", e["dur"]) / 1e3, "end": e["ts"] + e["dur"]}
+        while open_tasks and open_tasks[-1]["end"] <= e["ts"]:
+            open_tasks.pop()
+        if open_tasks:  # nested in the innermost open task: not part of its own time
+            open_tasks[-1]["cpu_ms"] -= item["cpu_ms"]
+            open_tasks[-1]["ms"] -= item["ms"]
+        open_tasks.append(item)
+        out.append(item)
+    return [{"ms": round(t["ms"], 1), "cpu_ms": round(t["cpu_ms"], 1)} for t in out]
 
 
 def test_no_long_task_in_first_picture_and_drag_at_a_million_rows(browser, static_server):
