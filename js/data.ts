@@ -36,9 +36,14 @@ export interface RowIndex {
 }
 
 export interface Table {
+  /** rows whose codes are on the page (the sample size in the scale tier) */
   n: number;
   /** row index labels, when the kernel sent them */
   index: RowIndex | null;
+  /** rows of the whole table (equal to n unless sampled) */
+  total: number;
+  /** the page holds a seeded sample of the rows (the scale tier) */
+  sampled: boolean;
   axes: AxisData[];
   byName: Map<string, AxisData>;
 }
@@ -62,6 +67,9 @@ interface RawColumn {
 export interface RawTable {
   n?: number;
   index?: RowIndex;
+  /** all rows of the table; absent or equal to n when not sampled */
+  total?: number;
+  sampled?: boolean;
   columns?: RawColumn[];
 }
 
@@ -93,7 +101,9 @@ export function decodeTable(raw: RawTable | null | undefined): Table {
     rest: c.rest,
     codes: asUint16(c.codes, c.name, n),
   }));
-  return { n, index: raw?.index ?? null, axes, byName: new Map(axes.map((a) => [a.name, a])) };
+  const sampled = !!raw?.sampled;
+  const total = Math.max(n, Number(raw?.total ?? n) || n);
+  return { n, total, sampled, index: raw?.index ?? null, axes, byName: new Map(axes.map((a) => [a.name, a])) };
 }
 
 /** The index label of a row (its position in the table), or null when the kernel sent no index. */
@@ -133,12 +143,30 @@ export function codeToValue(a: AxisData, code: number): number {
   return code === CODE_MISSING ? NaN : valueAt(a, code / CODE_MAX);
 }
 
-/** Unpack the kernel's bit-packed mask (little bit order) into one byte per row. */
+/** Per byte value, its 8 bits (little bit order) as two 32-bit words of one byte per bit. */
+const UNPACKED = (() => {
+  const words = new Uint32Array(512);
+  const bytes = new Uint8Array(words.buffer);
+  for (let v = 0; v < 256; v++) for (let b = 0; b < 8; b++) bytes[v * 8 + b] = (v >> b) & 1;
+  return words;
+})();
+
+/**
+ * Unpack the kernel's bit-packed mask (little bit order) into one byte per row: a table lookup per
+ * packed byte (two 32-bit stores), not a shift per row.
+ */
 export function unpackMask(bits: DataView | null | undefined, n: number): Uint8Array | null {
   if (!bits || bits.byteLength * 8 < n) return null;
-  const out = new Uint8Array(n);
-  for (let i = 0; i < n; i++) out[i] = (bits.getUint8(i >> 3) >> (i & 7)) & 1;
-  return out;
+  const bytes = Math.ceil(n / 8);
+  const words = new Uint32Array(bytes * 2);
+  const packed = new Uint8Array(bits.buffer, bits.byteOffset, bytes);
+  for (let j = 0; j < bytes; j++) {
+    const v = packed[j] << 1;
+    words[2 * j] = UNPACKED[v];
+    words[2 * j + 1] = UNPACKED[v + 1];
+  }
+  // bits past n (padding of the last byte) are not part of the mask
+  return new Uint8Array(words.buffer, 0, n);
 }
 
 /** A deterministic spread 0..1 per row, so that lines inside a category band stay apart. */

@@ -40,6 +40,9 @@ export function publishDrawn(root: HTMLElement, drawn: number, r: PaintResult): 
   ds.drawn = String(drawn);
   ds.drawMs = r.ms.toFixed(1);
   ds.drawnBy = r.workers ? "workers" : "page";
+  // density view: the counting part of the draw
+  if (r.countMs !== undefined) ds.countMs = r.countMs.toFixed(1);
+  else delete ds.countMs;
 }
 
 export interface ShownLayout {

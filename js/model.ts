@@ -5,6 +5,30 @@ import type { AnyModel } from "@anywidget/types";
 import type { RawTable } from "./data";
 import type { TraitRanges } from "./selection";
 
+/** One neighbouring pair's counts: little-endian uint32, (bins+1)^2 cells, cell = left_bin * (bins+1) + right_bin. */
+export interface PairCountsEntry {
+  left: string;
+  right: string;
+  all: DataView | ArrayBuffer | Uint8Array;
+  /** rows selected by the kernel's exact mask (answers edit `seq` of the trait) */
+  selected: DataView | ArrayBuffer | Uint8Array | null;
+}
+
+/** The `pair_counts` trait (see SCALE_CONTRACT / DEVELOPERS.md). */
+export interface PairCountsTrait {
+  bins: number;
+  order: string[];
+  /** the answered_seq the selected counts answer */
+  seq: number;
+  pairs: PairCountsEntry[];
+}
+
+/** The `rank_matrix` trait: values[i][j] between axes[i] and axes[j]; null (NaN) for no value. */
+export interface RankMatrixTrait {
+  axes: string[];
+  values: (number | null)[][];
+}
+
 export interface Traits {
   /** kernel → page: the axes and their wire codes */
   table: RawTable;
@@ -47,6 +71,10 @@ export interface Traits {
   callback_error?: string;
   /** kernel → page: up to 3 axes where the selected rows differ most from the rest (w.contrast()); marked on their headers */
   contrast_axes?: string[];
+  /** kernel → page, scale tier only (`{}` otherwise): binned pair counts between neighbouring axes over all rows */
+  pair_counts?: PairCountsTrait | Record<string, never> | null;
+  /** kernel → page, all tiers: Spearman's rho between every pair of axes (readouts between neighbours) */
+  rank_matrix?: RankMatrixTrait | Record<string, never> | null;
   /** set only in an exported page: there is no kernel behind it */
   _standalone?: boolean;
 }

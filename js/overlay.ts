@@ -38,7 +38,10 @@ export function rowPlacement(scales: AxisScale[], layout: Layout): { base: Float
         height[c] = Math.max(0, b.y1 - b.y0 - 2 * padding);
       });
     } else {
-      for (let c = 0; c < CODE_MISSING; c++) base[c] = sc.codePixel(c);
+      // codePixel is linear in the code: the same formula inline (no call per code)
+      const p0 = sc.codePixel(0);
+      const span = sc.codePixel(CODE_MAX) - p0;
+      for (let c = 0; c < CODE_MISSING; c++) base[c] = p0 + (c / CODE_MAX) * span;
     }
     base[CODE_MISSING] = layout.laneY;
     return { base, height };

@@ -13,9 +13,11 @@
 
 import { type Colouring, type RGB } from "./colour";
 import { isCategorical, type Table } from "./data";
+import { DensityCounts, type CountSpec } from "./densitycount";
+import type { KernelPair } from "./scaletier";
 import type { Layout } from "./layout";
 import { BUNDLE_SLOTS, bundleCentres, linesDrawer, type LinesSetup } from "./linespass";
-import { CODE_MAX, CODE_MISSING, DENSITY_BINS, densityBins, HIST_BINS, histBin } from "./wire";
+import { CODE_MAX, CODE_MISSING, DENSITY_BINS, HIST_BINS } from "./wire";
 import { Accumulator, gainForOpacity } from "./raster";
 import { WorkerPool } from "./workers";
 import type { AxisScale } from "./scales";
@@ -42,6 +44,12 @@ export interface PaintJob {
   dpr: number;
   /** show the picture transposed (horizontal orientation: logical x is the page's y) */
   transpose: boolean;
+  /** scale tier, density view: the kernel's counts per gap of the layout (null: counted from the sample) */
+  kernel?: { pairs: (KernelPair | null)[]; selectedFresh: boolean } | null;
+  /** rows each page row stands for (N / k in the scale tier, else 1) */
+  rowWeight?: number;
+  /** an intermediate picture (a range being dragged): may wait for the drawing in progress */
+  follow?: boolean;
 }
 
 export interface PaintResult {
@@ -53,6 +61,8 @@ export interface PaintResult {
   histAll: Uint32Array[];
   /** the bundling the lines were drawn with (centres in CSS px per gap and slot), for hovering */
   bundle: { axis: number; strength: number; centres: Float64Array } | null;
+  /** density view: milliseconds spent bringing the pair counts up to date (yields included) */
+  countMs?: number;
 }
 
 /** What one painting pass works with. */
@@ -66,6 +76,8 @@ interface Pass {
   histAll: Uint32Array[];
   /** set by the lines pass when it bundles (centres in device px) */
   bundle: LinesSetup["bundle"];
+  /** set by the density pass: milliseconds of counting */
+  countMs?: number;
   /** run a body over all rows in chunks; false when the job was abandoned */
   chunked: (body: (i0: number, i1: number) => void, share: [number, number]) => Promise<boolean>;
 }
@@ -73,6 +85,9 @@ interface Pass {
 /** Bins per axis in the density view (the wire contract's, as in density.py). */
 export const BINS = DENSITY_BINS;
 const CHUNK_MS = 14;
+/** The density view and the final picture work in shorter slices (they run while a range is dragged). */
+const SLICE_MS = 8;
+const SHOW_ROWS = 64;
 /** Tables with at least this many cells (rows x axes) are drawn by Web Workers in lines mode. */
 const WORKER_CELLS = 400_000;
 const SHOW_MS = 180;
@@ -98,6 +113,13 @@ export class LinePainter {
   private turned: ImageData | null = null;
   private pool: WorkerPool | null = null;
   private usedWorkers = false;
+  /** the drawing in progress, and the job to draw after it (see paint) */
+  private running: { mode: Mode; token: number } | null = null;
+  private next: PaintJob | null = null;
+  /** the density view's counts, kept between redraws (see densitycount.ts) */
+  private counts = new DensityCounts();
+  private binYKey: { scales: AxisScale[] | null; dpr: number; laneY: number } = { scales: null, dpr: 0, laneY: 0 };
+  private binYCache = new Map<string, Float32Array>();
 
   constructor(
     private canvas: HTMLCanvasElement,
@@ -107,15 +129,39 @@ export class LinePainter {
 
   /** Start painting a job; a job still running is abandoned. */
   paint(job: PaintJob): void {
+    // while a range is dragged in the density view, a drawing in progress finishes and the latest job
+    // follows it (else every pointer move would restart it and no picture would appear until the pointer
+    // rests); any other job replaces the one in progress at once
+    if (job.follow && job.mode === "density" && this.running?.mode === "density") {
+      this.next = job;
+      return;
+    }
+    this.next = null;
     const token = ++this.token;
-    this.run(job, token).catch((err) => {
-      console.error("axeswidget: drawing failed", err);
-      this.onProgress(null);
-    });
+    this.running = { mode: job.mode, token };
+    this.run(job, token)
+      .catch((err) => {
+        console.error("axeswidget: drawing failed", err);
+        this.onProgress(null);
+      })
+      .finally(() => {
+        if (this.running?.token !== token) return;
+        this.running = null;
+        const next = this.next;
+        this.next = null;
+        if (next) this.paint(next);
+      });
   }
 
   cancel() {
     this.token++;
+    this.running = null;
+    this.next = null;
+  }
+
+  /** Forget the density counts kept (the next density pass counts every row again; for the bench). */
+  forgetCounts() {
+    this.counts.forget();
   }
 
 
@@ -148,8 +194,8 @@ export class LinePainter {
     let shown = t0;
     let chunk = 2048;
 
-    const show = () => {
-      compose(fad, sel, image, fadedGain, gain, job.mask !== null);
+    const show = (composed = false) => {
+      if (!composed) compose(fad, sel, image, fadedGain, gain, job.mask !== null);
       if (!job.transpose) {
         ctx.putImageData(image, 0, 0);
         return;
@@ -183,16 +229,28 @@ export class LinePainter {
     };
 
     let bundle: PaintResult["bundle"] = null;
+    let countMs: number | undefined;
     if (k >= 2 && n > 0) {
       const xs = new Float32Array(job.layout.slots.map((s) => s.x * job.dpr));
       const pass: Pass = { job, codes, xs, sel, fad, histSelected, histAll, bundle: null, chunked };
       const ok = job.mode === "density" ? await this.density(pass) : await this.lines(pass);
       if (!ok || token !== this.token) return;
       if (pass.bundle) bundle = { ...pass.bundle, centres: pass.bundle.centres.map((y) => y / job.dpr) };
+      countMs = pass.countMs;
     }
-    show();
+    // the finished picture is tone-mapped a band of rows at a time (a big canvas is a long task at once)
+    let slice = performance.now();
+    for (let y0 = 0; y0 < H; y0 += SHOW_ROWS) {
+      compose(fad, sel, image, fadedGain, gain, job.mask !== null, y0, Math.min(H, y0 + SHOW_ROWS));
+      if (y0 + SHOW_ROWS < H && performance.now() - slice >= SLICE_MS) {
+        await yieldToPage();
+        if (token !== this.token) return;
+        slice = performance.now();
+      }
+    }
+    show(true);
     this.onProgress(null);
-    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers, bundle });
+    this.onDone({ ms: performance.now() - t0, histSelected, histAll, workers: this.usedWorkers, bundle, countMs });
   }
 
   private async lines(pass: Pass): Promise<boolean> {
@@ -274,94 +332,179 @@ export class LinePainter {
   }
 
   private async density(pass: Pass): Promise<boolean> {
-    const { job, codes, xs, sel, fad, histSelected, histAll, chunked } = pass;
+    const { job, codes, xs, sel, fad, histSelected, histAll } = pass;
     const k = xs.length;
-    const { mask, colouring } = job;
-    // colour groups: at most 9 in density mode (categories keep theirs; continuous values 8 levels)
-    const src = colouring.group;
-    const palette = colouring.palette;
-    const G = src ? Math.min(9, palette.length) : 1;
-    const gOf = (i: number) => {
-      if (!src) return 0;
-      const g = src[i];
-      if (palette.length <= 9) return g;
-      return g >= palette.length - 1 ? 8 : Math.min(7, Math.floor((g * 8) / (palette.length - 1)));
-    };
-    const groupColour = (g: number): RGB => {
-      if (!src || palette.length <= 9) return palette[g];
-      if (g === 8) return palette[palette.length - 1];
-      return palette[Math.min(palette.length - 2, Math.round(((g + 0.5) * (palette.length - 1)) / 8))];
-    };
-    const B = BINS + 1; // last bin: missing
-    // bin of every code per axis: floor(code * BINS / CODE_MISSING) as in density.py; category bands
-    // keep their band number; the missing code gets the last bin
-    const luts = job.scales.map((sc) => densityBins(BINS, isCategorical(sc.axis)));
-    const cells = B * B;
-    const selCounts = Array.from({ length: k - 1 }, () => new Uint32Array(G * cells));
-    const fadCounts = Array.from({ length: k - 1 }, () => new Uint32Array(cells));
-    const bins = new Int32Array(k);
-    const ok = await chunked((i0, i1) => {
-      for (let i = i0; i < i1; i++) {
-        const on = mask ? mask[i] : 1;
-        const g = gOf(i);
-        for (let a = 0; a < k; a++) {
-          const b = luts[a][codes[a][i]];
-          bins[a] = b;
-          const c = codes[a][i];
-          if (c !== CODE_MISSING) {
-            const hb = histBin(c);
-            histAll[a][hb]++;
-            if (on) histSelected[a][hb]++;
-          }
-        }
-        if (on) for (let a = 0; a + 1 < k; a++) selCounts[a][g * cells + bins[a] * B + bins[a + 1]]++;
-        else for (let a = 0; a + 1 < k; a++) fadCounts[a][bins[a] * B + bins[a + 1]]++;
+    const token = this.token;
+    let slice = performance.now();
+    const breathe = async () => {
+      if (performance.now() - slice >= SLICE_MS) {
+        await yieldToPage();
+        slice = performance.now();
       }
-    }, [0, 0.7]);
-    if (!ok) return false;
-    // y of a bin's centre per axis
-    const binY = job.scales.map((sc) => {
-      const ys = new Float32Array(B);
-      for (let b = 0; b < BINS; b++) {
-        if (isCategorical(sc.axis)) {
-          const band = sc.bands[b];
-          ys[b] = band ? ((band.y0 + band.y1) / 2) * job.dpr : NaN;
-        } else ys[b] = sc.codePixel(Math.min(CODE_MAX, ((b + 0.5) * CODE_MISSING) / BINS)) * job.dpr;
-      }
-      ys[BINS] = job.layout.laneY * job.dpr;
-      return ys;
-    });
-    const draw = (acc: Accumulator, counts: Uint32Array, a: number, colour: RGB, offset: number) => {
+      return token === this.token;
+    };
+    const kernel = job.kernel ?? null;
+    // colour groups: at most 9 in density mode; the scale tier draws the kernel's counts in the line colour
+    const groups = densityGroups(kernel ? null : job.colouring);
+    const categorical = job.scales.map((sc) => isCategorical(sc.axis));
+    const spec: CountSpec = { n: job.table.n, codes, categorical, bins: BINS, group: groups.group, groups: groups.count, key: [job.table] };
+    const counts = this.counts;
+    // counting starts in a task of its own (the overlay and the status are drawn in this one)
+    await yieldToPage();
+    if (token !== this.token) return false;
+    slice = performance.now();
+    const c0 = performance.now();
+    if (!(await counts.prepare(spec, job.mask, breathe))) return false;
+    pass.countMs = performance.now() - c0;
+    counts.histAll.forEach((h, a) => histAll[a].set(h));
+    counts.histSel.forEach((h, a) => histSelected[a].set(h));
+    const drawPair = (acc: Accumulator, a: number, weights: ArrayLike<number>, offset: number, bins: number, colour: RGB, transposed = false) => {
+      const B1 = bins + 1;
+      const cells = B1 * B1;
+      const yl = this.binY(job, a, bins);
+      const yr = this.binY(job, a + 1, bins);
       const x0 = xs[a];
       const x1 = xs[a + 1];
       for (let cell = 0; cell < cells; cell++) {
-        const w = counts[offset + cell];
-        if (!w) continue;
-        const y0 = binY[a][(cell / B) | 0];
-        const y1 = binY[a + 1][cell % B];
+        const w = weights[offset + cell];
+        if (!(w > 0)) continue;
+        const q = (cell / B1) | 0;
+        const r = cell - q * B1;
+        const y0 = transposed ? yl[r] : yl[q];
+        const y1 = transposed ? yr[q] : yr[r];
         if (job.curves) acc.curveSegment(x0, y0, x1, y1, colour[0], colour[1], colour[2], w);
         else acc.segment(x0, y0, x1, y1, colour[0], colour[1], colour[2], w);
       }
     };
-    let slice = performance.now();
-    const breathe = async () => {
-      if (performance.now() - slice < CHUNK_MS) return true;
-      await yieldToPage();
-      slice = performance.now();
-      return token === this.token;
-    };
-    const token = this.token;
+    const cells = counts.cells;
+    const scale = job.rowWeight ?? 1;
+    const faded = new Float32Array(cells);
+    const chosen = new Float32Array(cells);
     for (let a = 0; a + 1 < k; a++) {
-      draw(fad, fadCounts[a], a, job.faded, 0);
-      if (!(await breathe())) return false;
-      for (let g = 0; g < G; g++) {
-        draw(sel, selCounts[a], a, groupColour(g), g * cells);
+      const kp = kernel?.pairs[a] ?? null;
+      const all = counts.all[a];
+      const got = counts.sel[a];
+      if (kp && (job.mask === null || (kernel!.selectedFresh && kp.selected) || kp.bins === BINS)) {
+        // the kernel's counts over every row; the selected ones are its own once they answer the latest
+        // edit, else scaled up from the sample (never more than the cell holds)
+        const exact = job.mask === null ? kp.all : kernel!.selectedFresh ? kp.selected : null;
+        const { ksel, kfaded } = kernelLayers(kp, exact, got, scale);
+        drawPair(fad, a, kfaded, 0, kp.bins, job.faded, kp.transposed);
         if (!(await breathe())) return false;
+        drawPair(sel, a, ksel, 0, kp.bins, groups.colour(0, job.colouring), kp.transposed);
+      } else {
+        // counted here: rows left out (faded, all groups together), selected rows per colour group
+        fadedLayer(all, got, groups.count, cells, scale, faded);
+        drawPair(fad, a, faded, 0, BINS, job.faded);
+        if (!(await breathe())) return false;
+        for (let g = 0; g < groups.count; g++) {
+          scaled(got, g * cells, cells, scale, chosen);
+          drawPair(sel, a, chosen, 0, BINS, groups.colour(g, job.colouring));
+          if (!(await breathe())) return false;
+        }
       }
-      this.onProgress(0.7 + (0.3 * (a + 1)) / (k - 1));
+      if (!(await breathe())) return false;
+      this.onProgress((a + 1) / (k - 1));
     }
     return true;
   }
+
+  /** y (device px) of each bin centre on the axis in slot a, cached per layout, pixel ratio and bin count. */
+  private binY(job: PaintJob, a: number, bins: number): Float32Array {
+    const key = job.scales;
+    if (this.binYKey.scales !== key || this.binYKey.dpr !== job.dpr || this.binYKey.laneY !== job.layout.laneY) {
+      this.binYKey = { scales: key, dpr: job.dpr, laneY: job.layout.laneY };
+      this.binYCache.clear();
+    }
+    const id = `${a}:${bins}`;
+    let ys = this.binYCache.get(id);
+    if (!ys) {
+      const sc = job.scales[a];
+      ys = new Float32Array(bins + 1);
+      for (let b = 0; b < bins; b++) {
+        if (isCategorical(sc.axis)) {
+          const band = sc.bands[b];
+          ys[b] = band ? ((band.y0 + band.y1) / 2) * job.dpr : NaN;
+        } else ys[b] = sc.codePixel(Math.min(CODE_MAX, ((b + 0.5) * CODE_MISSING) / bins)) * job.dpr;
+      }
+      ys[bins] = job.layout.laneY * job.dpr;
+      this.binYCache.set(id, ys);
+    }
+    return ys;
+  }
+}
+
+/**
+ * The scale tier's layers of one pair from the kernel's counts: selected = the kernel's exact counts
+ * (`exact`), or else the sample's selected counts scaled up (never more than the cell holds); the rest
+ * faded. The sample's cell of the same (left, right) bins is read transposed when the kernel's pair is.
+ */
+function kernelLayers(kp: KernelPair, exact: Uint32Array | null, sample: Uint32Array, scale: number) {
+  const B1 = kp.bins + 1;
+  const kcells = B1 * B1;
+  const kfaded = new Float32Array(kcells);
+  const ksel = new Float32Array(kcells);
+  for (let c = 0; c < kcells; c++) {
+    const total = kp.all[c];
+    let s: number;
+    if (exact) s = Math.min(total, exact[c]);
+    else {
+      const q = (c / B1) | 0;
+      const sc = kp.transposed ? (c - q * B1) * B1 + q : c;
+      s = Math.min(total, Math.round(sample[sc] * scale));
+    }
+    ksel[c] = s;
+    kfaded[c] = total - s;
+  }
+  return { ksel, kfaded };
+}
+
+/** Rows left out of a pair's counts (all groups together), times `scale`, into `out`. */
+function fadedLayer(all: Uint32Array, got: Uint32Array, groups: number, cells: number, scale: number, out: Float32Array) {
+  for (let c = 0; c < cells; c++) {
+    let f = 0;
+    for (let g = 0, o = c; g < groups; g++, o += cells) f += all[o] - got[o];
+    out[c] = f * scale;
+  }
+}
+
+/** counts[offset..offset+cells) times `scale`, into `out`. */
+function scaled(counts: Uint32Array, offset: number, cells: number, scale: number, out: Float32Array) {
+  for (let c = 0; c < cells; c++) out[c] = counts[offset + c] * scale;
+}
+
+/** Colour groups of the density view: at most 9 (categories keep theirs; continuous values 8 levels). */
+interface DensityGroups {
+  group: Uint8Array | null;
+  count: number;
+  colour(g: number, c: Colouring): RGB;
+}
+
+const groupCache = new WeakMap<Colouring, DensityGroups>();
+const ONE_GROUP: DensityGroups = { group: null, count: 1, colour: (_g, c) => c.palette[0] };
+
+function densityGroups(c: Colouring | null): DensityGroups {
+  if (!c || !c.group) return ONE_GROUP;
+  let out = groupCache.get(c);
+  if (out) return out;
+  const palette = c.palette;
+  const src = c.group;
+  if (palette.length <= 9) out = { group: src, count: palette.length, colour: (g, cc) => cc.palette[g] };
+  else {
+    const group = new Uint8Array(src.length);
+    const last = palette.length - 1;
+    for (let i = 0; i < src.length; i++) {
+      const g = src[i];
+      group[i] = g >= last ? 8 : Math.min(7, Math.floor((g * 8) / last));
+    }
+    out = {
+      group,
+      count: 9,
+      colour: (g, cc) => (g === 8 ? cc.palette[last] : cc.palette[Math.min(last - 1, Math.round(((g + 0.5) * last) / 8))]),
+    };
+  }
+  groupCache.set(c, out);
+  return out;
 }
 
 /** Swap rows and columns of an image (src W x H into dst H x W). */
@@ -376,14 +519,15 @@ export function transpose(src: ImageData, dst: ImageData) {
   }
 }
 
-/** Selected layer over faded layer (straight alpha), into `image`. */
-export function compose(fad: Accumulator, sel: Accumulator, image: ImageData, fadedGain: number, gain: number, fadedUsed = true) {
+/** Selected layer over faded layer (straight alpha), into `image` (rows y0..y1-1 when given). */
+export function compose(fad: Accumulator, sel: Accumulator, image: ImageData, fadedGain: number, gain: number, fadedUsed = true, y0 = 0, y1 = image.height) {
   const out = image.data;
   const tmp = compose.buffer.length === out.length ? compose.buffer : (compose.buffer = new Uint8ClampedArray(out.length));
-  if (fadedUsed) fad.resolve(out, fadedGain);
-  else out.fill(0);
-  sel.resolve(tmp, gain);
-  for (let p = 0; p < out.length; p += 4) {
+  const row = image.width * 4;
+  if (fadedUsed) fad.resolve(out, fadedGain, y0, y1);
+  else out.fill(0, y0 * row, y1 * row);
+  sel.resolve(tmp, gain, y0, y1);
+  for (let p = y0 * row, end = y1 * row; p < end; p += 4) {
     const as = tmp[p + 3];
     if (!as) continue;
     if (as === 255 || !out[p + 3]) {

@@ -236,10 +236,11 @@ export class Accumulator {
    *   canvas alpha blending.
    * - colour = the weight-averaged colour of everything in the pixel.
    * - Empty pixels become (0, 0, 0, 0).
+   * Rows y0..y1-1 only when given (the page tone-maps a big picture a band of rows at a time).
    */
-  resolve(out: Uint8ClampedArray, gain: number): void {
+  resolve(out: Uint8ClampedArray, gain: number, y0 = 0, y1 = this.height): void {
     const W = this.width;
-    const H = this.height;
+    const H = Math.min(this.height, y1);
     if (out.length < W * H * 4) throw new RangeError('resolve: output too short');
     const S = this.stride;
     const pend = this.pend;
@@ -251,7 +252,7 @@ export class Accumulator {
     const r8 = pr * 255;
     const g8 = pg * 255;
     const b8 = pb * 255;
-    for (let y = 0; y < H; y++) {
+    for (let y = Math.max(0, y0); y < H; y++) {
       let p = (y + GUARD) * S + GUARD;
       let o = y * W * 4;
       for (let x = 0; x < W; x++, p++, o += 4) {

@@ -192,31 +192,36 @@ export function previewMask(table: Table, sel: Sel): { mask: Uint8Array; count: 
   for (const [name, s] of Object.entries(sel)) {
     const axis = table.byName.get(name);
     if (!axis || isEmpty(s)) continue;
-    // a lookup table over every code: is this code picked?
-    const lut = new Uint8Array(CODE_COUNT);
-    if (isCategorical(axis)) {
-      const k = bandCount(axis);
-      for (const b of s.bands) if (b < k) lut[b] = 1;
-    } else {
-      for (const [lo, hi] of s.spans) {
-        const flo = lo === -Infinity ? 0 : fraction(axis, lo);
-        const fhi = hi === Infinity ? 1 : fraction(axis, hi);
-        let a: number, b: number;
-        if (!isFinite(flo) || !isFinite(fhi)) {
-          // zero-width domain: every present row sits at lo
-          [a, b] = lo <= axis.lo && axis.lo <= hi ? [0, CODE_MAX] : [1, 0];
-        } else {
-          a = Math.max(0, Math.round(flo * CODE_MAX));
-          b = Math.min(CODE_MAX, Math.round(fhi * CODE_MAX));
-        }
-        lut.fill(1, a, b + 1);
-      }
-    }
-    if (s.lane) lut[CODE_MISSING] = 1;
+    const lut = pickedCodes(axis, s);
     const codes = axis.codes;
     for (let i = 0; i < n; i++) mask[i] &= lut[codes[i]];
   }
   let count = 0;
   for (let i = 0; i < n; i++) count += mask[i];
   return { mask, count };
+}
+
+/** A lookup table over every code of an axis: 1 where the code is picked by the axis's selection. */
+export function pickedCodes(axis: AxisData, s: AxisSel): Uint8Array {
+  const lut = new Uint8Array(CODE_COUNT);
+  if (isCategorical(axis)) {
+    const k = bandCount(axis);
+    for (const b of s.bands) if (b < k) lut[b] = 1;
+  } else {
+    for (const [lo, hi] of s.spans) {
+      const flo = lo === -Infinity ? 0 : fraction(axis, lo);
+      const fhi = hi === Infinity ? 1 : fraction(axis, hi);
+      let a: number, b: number;
+      if (!isFinite(flo) || !isFinite(fhi)) {
+        // zero-width domain: every present row sits at lo
+        [a, b] = lo <= axis.lo && axis.lo <= hi ? [0, CODE_MAX] : [1, 0];
+      } else {
+        a = Math.max(0, Math.round(flo * CODE_MAX));
+        b = Math.min(CODE_MAX, Math.round(fhi * CODE_MAX));
+      }
+      lut.fill(1, a, b + 1);
+    }
+  }
+  if (s.lane) lut[CODE_MISSING] = 1;
+  return lut;
 }

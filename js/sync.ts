@@ -1,7 +1,8 @@
 // Keeping the page's selection in step with the kernel.
 //
 // The page sends intent (the `ranges` trait, with a bumped `edit_seq`; `dragging` while a gesture is in
-// progress, throttled to one send per SYNC_MS) and previews the result from its quantised codes. The
+// progress, throttled to one send per SYNC_MS) and previews the result from its quantised codes (for the
+// dragged axis only, preview.ts; in the scale tier from the sample rows on the page). The
 // kernel answers with the exact `count` and `mask_bits` and the `answered_seq` they belong to; the page
 // adopts an answer once it answers the latest edit sent (coalescing the up to three trait changes of one
 // answer into one adoption). That is how the page's count ends equal to the kernel's. Without a kernel
@@ -9,7 +10,8 @@
 
 import { unpackMask, type Table } from "./data";
 import type { WidgetModel } from "./model";
-import { fromTrait, previewMask, selKey, toTrait, type Sel } from "./selection";
+import { Previewer } from "./preview";
+import { fromTrait, selKey, toTrait, type Sel } from "./selection";
 
 export const SYNC_MS = 60;
 
@@ -26,7 +28,11 @@ export class KernelSync {
   /** true while a gesture is in progress */
   dragging = false;
   private kernelMask: Uint8Array | null = null;
+  /** the kernel's exact count over all rows of the table */
   private kernelCount = 0;
+  /** selected rows of the kernel's mask among the page's rows (the sample in the scale tier) */
+  private kernelShown = 0;
+  private previewer = new Previewer();
   /** set while the page shows its own preview instead of the kernel's answer */
   private preview: { mask: Uint8Array; count: number } | null = null;
   private seqSent = 0;
@@ -80,14 +86,25 @@ export class KernelSync {
   tableChanged() {
     this.sel = this.fromRanges();
     this.preview = null;
+    this.previewer.reset();
     this.adopt();
   }
 
   /** Take the kernel's mask and count as the truth (they are exact). */
   private adopt() {
-    const n = this.host.table().n;
+    const table = this.host.table();
+    const n = table.n;
     this.kernelMask = unpackMask(this.model.get("mask_bits"), n);
-    this.kernelCount = this.model.get("count") ?? n;
+    this.kernelCount = this.model.get("count") ?? table.total;
+    let shown = this.kernelCount;
+    if (table.sampled) {
+      shown = n;
+      if (this.kernelMask) {
+        shown = 0;
+        for (let i = 0; i < n; i++) shown += this.kernelMask[i];
+      }
+    }
+    this.kernelShown = shown;
     this.preview = null;
     this.host.invalidate(true);
   }
@@ -96,14 +113,14 @@ export class KernelSync {
   edit(s: Sel, final: boolean) {
     this.sel = s;
     this.dragging = !final;
-    this.preview = previewMask(this.host.table(), s);
+    this.preview = this.previewer.mask(this.host.table(), s);
     this.host.invalidate(true);
     if (final) {
       this.send();
       if (this.model.get("_standalone") && this.preview) {
         // no kernel behind this page (an exported file): the page's own mask is the answer
         this.kernelMask = this.preview.mask;
-        this.kernelCount = this.preview.count;
+        this.kernelCount = this.kernelShown = this.preview.count;
         this.preview = null;
         this.host.invalidate(true);
       }
@@ -134,7 +151,7 @@ export class KernelSync {
     if (!this.dragging) {
       // draw what is sent: ends as the kernel will read them (whole values on integer axes, ms on dates)
       this.sel = fromTrait(table, value);
-      this.preview = previewMask(table, this.sel);
+      this.preview = this.previewer.mask(table, this.sel);
       this.host.invalidate(true);
     }
     this.seqSent = Math.max(this.seqSent, this.model.get("edit_seq") ?? 0) + 1;
@@ -146,14 +163,23 @@ export class KernelSync {
 
   /** The rows shown as selected (null: no selection, every row), their count, and whether it is a preview. */
   shown(): { mask: Uint8Array | null; count: number; preview: boolean } {
-    const n = this.host.table().n;
-    const anyRange = Object.keys(this.sel).length > 0 || (this.kernelMask !== null && this.kernelCount < n);
+    const table = this.host.table();
+    const n = table.n;
+    const anyRange = Object.keys(this.sel).length > 0 || (this.kernelMask !== null && this.kernelCount < table.total);
     const mask = this.preview ? this.preview.mask : this.kernelMask;
-    const count = this.preview ? this.preview.count : this.kernelCount;
+    const count = this.preview ? this.preview.count : this.kernelShown;
     return { mask: anyRange ? mask : null, count: anyRange ? count : n, preview: this.preview !== null };
   }
 
-  /** The count the status line shows (the preview's while checking), and whether it is a preview. */
+  /** The kernel has answered the latest edit (`seq` is at least the last edit this page sent). */
+  answers(seq: number): boolean {
+    return this.preview === null && seq >= this.seqSent;
+  }
+
+  /**
+   * The count the status line shows, and whether it is a preview: the preview's count over the page's
+   * rows while checking, else the kernel's exact count over all rows.
+   */
   status(): { count: number; preview: boolean } {
     return this.preview ? { count: this.preview.count, preview: true } : { count: this.kernelCount, preview: false };
   }

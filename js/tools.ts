@@ -40,7 +40,7 @@ export function selectionPhrases(table: Table, sel: Sel, scales: AxisScale[]): s
 /** The live summary: "1,234 of 20,000 rows selected; efficiency_pct 52–61.5". */
 export function selectionSummary(table: Table, sel: Sel, scales: AxisScale[], count: number, preview: boolean): string {
   const phrases = selectionPhrases(table, sel, scales);
-  const head = `${preview ? "about " : ""}${fmt(count)} of ${fmt(table.n)} rows selected`;
+  const head = `${preview ? "about " : ""}${fmt(count)} of ${fmt(table.total ?? table.n)} rows selected`;
   return phrases.length ? `${head}; ${phrases.join("; ")}` : `${head}; no ranges`;
 }
 

@@ -2,7 +2,7 @@
 // from the modules that do the work — kernel sync (sync.ts), lines layer (paint.ts), overlay (overlay.ts),
 // hover and pin (hover.ts), legend (legend.ts), gestures (brush.ts) and test hooks (hooks.ts).
 
-import { PairCache, rankCorrelation } from "./association";
+import { neighbourReadouts, RankLookup, type Readout } from "./association";
 import { AxisPicker } from "./axispicker";
 import { axisStats, statsText } from "./axisstats";
 import { attachBrush, type Hit } from "./brush";
@@ -20,6 +20,7 @@ import { autoAlpha, drawOverlay, readTheme, rowPlacement, scalesFor, uprightText
 import { LinePainter, type Mode, type PaintJob, type PaintResult } from "./paint";
 import type { AxisScale } from "./scales";
 import { ensureStyles } from "./style";
+import { PairLookup, pairCountsOf, statusText } from "./scaletier";
 import { KernelSync } from "./sync";
 import { fillBox, linesPerColumn, placeFloating, rowTitle, trimToFit } from "./valuesbox";
 import { chartWidth } from "./wide";
@@ -66,7 +67,9 @@ export class View {
   private dirtyLines = true;
   private dirtyOverlay = true;
   private cleanup: (() => void)[] = [];
-  private pairs = new PairCache();
+  private ranks: RankLookup | null = null;
+  /** the kernel's pair counts (scale tier), decoded on first use */
+  private kernelPairs: PairLookup | null = null;
   private painter: LinePainter;
   private hist: PaintResult | null = null;
   private colours: Colouring | null = null;
@@ -196,6 +199,14 @@ export class View {
       this.picker.refresh();
       this.resize();
     });
+    this.listen("change:pair_counts", () => {
+      this.kernelPairs = null;
+      if (this.table.sampled) this.invalidate(true);
+    });
+    this.listen("change:rank_matrix", () => {
+      this.ranks = null;
+      this.invalidate(false);
+    });
     this.listen("change:flipped", () => {
       this.layoutCache = null;
       this.invalidate(true);
@@ -297,7 +308,6 @@ export class View {
     this.colours = null;
     this.hist = null;
     this.hover = -1;
-    this.pairs.clear();
     if (this.spread.length !== this.table.n) this.spread = rowSpread(this.table.n);
     this.readOrder();
   }
@@ -349,18 +359,10 @@ export class View {
     }
   }
 
-  /** Rank association of each neighbouring pair (flips applied), from the page's codes. */
-  private readouts(): { left: string; right: string; value: number }[] {
-    const flipped = this.flipped();
-    const out = [];
-    for (let i = 0; i + 1 < this.order.length; i++) {
-      const a = this.table.byName.get(this.order[i])!;
-      const b = this.table.byName.get(this.order[i + 1])!;
-      let v = this.pairs.get(a.name, b.name, () => rankCorrelation(a.codes, b.codes));
-      if (flipped.has(a.name) !== flipped.has(b.name)) v = -v;
-      out.push({ left: a.name, right: b.name, value: v });
-    }
-    return out;
+  /** Rank association of each neighbouring pair (flips applied), looked up in the kernel's rank_matrix. */
+  private readouts(): Readout[] {
+    this.ranks ??= new RankLookup(this.model.get("rank_matrix"));
+    return neighbourReadouts(this.order, this.flipped(), this.ranks);
   }
 
   private invalidate(lines: boolean) {
@@ -437,7 +439,7 @@ export class View {
   mode(): Mode {
     const m = this.model.get("view_mode") ?? "auto";
     if (m === "lines" || m === "density") return m;
-    return this.table.n > DENSITY_ROWS ? "density" : "lines";
+    return this.table.sampled || this.table.n > DENSITY_ROWS ? "density" : "lines";
   }
 
   private colouringNow(): Colouring {
@@ -467,17 +469,32 @@ export class View {
     const bundleBy = this.model.get("bundle_by");
     const bundleAxis = bundleBy ? layout.slots.findIndex((s) => s.name === bundleBy) : -1;
     const strength = Math.min(1, Math.max(0, Number(this.model.get("bundle_strength") ?? 0.5)));
+    const mode = this.mode();
+    // scale tier, density view: the kernel's pair counts over every row, in the line colour
+    const scaleTier = this.table.sampled && mode === "density";
+    let kernel: PaintJob["kernel"] = null;
+    if (scaleTier) {
+      this.kernelPairs ??= new PairLookup(pairCountsOf(this.model.get("pair_counts")));
+      kernel = { pairs: this.kernelPairs.forOrder(layout.slots.map((s) => s.name)), selectedFresh: this.sync.answers(this.kernelPairs.seq) };
+    }
+    const line = hexToRgb(this.theme.line);
+    const rowWeight = this.table.total / Math.max(1, this.table.n);
     return {
       table: this.table,
       layout,
       scales: this.scales(),
-      place: this.placement(),
+      // the density view does not place rows (hover computes the placement when it needs it)
+      place: mode === "lines" ? this.placement() : [],
       spread: this.spread,
       mask: shown.mask,
-      colouring: this.colouringNow(),
+      colouring: scaleTier ? { group: null, palette: [line], legend: { kind: "none" } } : this.colouringNow(),
       faded: hexToRgb(this.theme.faded),
-      opacity: userOpacity > 0 ? Math.min(1, userOpacity) : autoAlpha(shown.count),
-      mode: this.mode(),
+      // in the scale tier a sample row stands for N / k rows: the opacity of as many rows as that
+      opacity: userOpacity > 0 ? Math.min(1, userOpacity) : autoAlpha(scaleTier ? shown.count * rowWeight : shown.count),
+      mode,
+      follow: this.sync.dragging,
+      kernel,
+      rowWeight,
       curves: !!this.model.get("curves"),
       bundle: bundleAxis >= 0 ? { axis: bundleAxis, strength } : null,
       dpr,
@@ -519,6 +536,11 @@ export class View {
       this.modeButton.textContent = job.mode === "density" ? "density ⇄ lines" : "lines ⇄ density";
       this.root.dataset.mode = job.mode;
       this.painter.paint(job);
+      if (this.drawn === 0 && this.dirtyOverlay) {
+        // first picture: the overlay and the status line in a task of their own (no long task)
+        setTimeout(() => this.invalidate(false), 0);
+        return;
+      }
     }
     if (this.dirtyOverlay) {
       this.paintOverlay(this.overlayCanvas, dpr);
@@ -562,6 +584,8 @@ export class View {
 
   /** Redraw everything now and resolve with the milliseconds the lines layer took (a bench hook). */
   redrawTimed(): Promise<number> {
+    // a full redraw counts the density view's pairs from zero (the bench times the counting pass)
+    this.painter.forgetCounts();
     return new Promise((resolve) => {
       this.waiters.push(resolve);
       this.invalidate(true);
@@ -705,14 +729,14 @@ export class View {
   }
 
   private updateStatus(layout: Layout) {
-    const n = this.table.n;
-    const fmt = (v: number) => v.toLocaleString("en-US");
+    const { n, total, sampled } = this.table;
     const { count, preview } = this.sync.status();
-    this.status.textContent = preview ? `≈ ${fmt(count)} of ${fmt(n)} rows selected (checking…)` : `${fmt(count)} of ${fmt(n)} rows selected`;
-    publishCount(this.root, count, n, preview);
+    const status = statusText({ count, preview, n, total, sampled, mode: this.mode() });
+    this.status.textContent = status.text;
+    publishCount(this.root, status.count, sampled ? total : n, preview);
     if (!this.sync.dragging) {
       const focus = this.keys?.active && this.keys.axis ? this.focusPhrase() : "";
-      this.tools.speak(focus + selectionSummary(this.table, this.sync.sel, this.scales(), count, preview));
+      this.tools.speak(focus + selectionSummary(this.table, this.sync.sel, this.scales(), status.count, preview));
     }
     publishLayout(this.root, {
       layout,

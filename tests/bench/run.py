@@ -265,6 +265,11 @@ def summary(results: dict) -> list[dict]:
             "target": 1.0,
             **(worst(sizes, "density_ratio") or {}),
         },
+        {
+            "figure": "density counting (browser), widget's count pass / bare loop",
+            "target": 1.5,
+            **(worst(sizes, "density_count_ratio") or {}),
+        },
     ]
     start, end = results["load_average_at_start"][0], results["load_average_at_end"][0]
     print(
