@@ -47,7 +47,9 @@ export class KernelSync {
     this.sel = this.fromRanges();
     this.adopt();
     this.listen("change:ranges", () => {
-      if (this.dragging) return;
+      // while an edit of this page is unanswered, the kernel's ranges answer an older edit (its
+      // rounding of it, say): the page's newer selection stands until the latest answer arrives
+      if (this.dragging || !this.answered()) return;
       const s = this.fromRanges();
       if (selKey(s) === selKey(this.sel)) return;
       this.sel = s;
@@ -106,6 +108,9 @@ export class KernelSync {
     }
     this.kernelShown = shown;
     this.preview = null;
+    // the answer to the latest edit: the kernel's reading of the ranges (ends rounded) is the truth
+    const s = this.fromRanges();
+    if (selKey(s) !== selKey(this.sel)) this.sel = s;
     this.host.invalidate(true);
   }
 
