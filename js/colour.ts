@@ -4,7 +4,7 @@
 // here as 65 evenly spaced stops, interpolated linearly. Okabe & Ito (2002) "Color Universal Design"
 // palette for categories (black left out, since it vanishes on dark themes).
 
-import { CODE_MAX, CODE_MISSING, isCategorical, type AxisData } from "./data";
+import { CODE_MAX, CODE_MISSING, codeToValue, isCategorical, type AxisData } from "./data";
 
 const VIRIDIS_STOPS = [
   "#440154", "#46065a", "#470d60", "#471365", "#48186a", "#481d6f", "#482374", "#482878", "#472d7b",
@@ -100,6 +100,9 @@ export function colouring(axis: AxisData | undefined, single: RGB): Colouring {
     const legendLabels = labels.slice(0, shown).concat(labels.length > shown || axis.rest ? ["other"] : []);
     return { group, palette, legend: { kind: "categories", labels: legendLabels, colours: palette.slice(0, legendLabels.length) } };
   }
+  if (axis.kind === "integer" && axis.values && axis.values.length >= 2 && axis.values.length <= DISCRETE_COLOURS) {
+    return discreteColouring(axis, axis.values);
+  }
   const palette: RGB[] = [];
   for (let l = 0; l < LEVELS; l++) palette.push(viridis(l / (LEVELS - 1)));
   const missing = palette.length;
@@ -109,4 +112,40 @@ export function colouring(axis: AxisData | undefined, single: RGB): Colouring {
     group[i] = c === CODE_MISSING ? missing : Math.min(LEVELS - 1, Math.floor((c / (CODE_MAX + 1)) * LEVELS));
   }
   return { group, palette, legend: { kind: "scale", axis } };
+}
+
+/** Whole-number colour columns with at most this many values get one swatch per value (class labels). */
+export const DISCRETE_COLOURS = 12;
+
+/**
+ * One colour per value of a whole-number column with few values (0/1/2 targets, 1..9 codes):
+ * Okabe–Ito up to its seven colours, otherwise viridis at evenly spaced steps; missing values grey.
+ */
+function discreteColouring(axis: AxisData, values: number[]): Colouring {
+  const k = values.length;
+  const palette: RGB[] = k <= OKABE_ITO.length ? OKABE_ITO.slice(0, k).map(hexToRgb) : values.map((_, i) => viridis(i / (k - 1)));
+  const missing = palette.length;
+  palette.push(MISSING_GREY);
+  // each code stands for one of the values: the nearest one (codes are quantised over the axis)
+  const lut = new Map<number, number>();
+  const nearest = (c: number) => {
+    const v = codeToValue(axis, c);
+    let best = 0;
+    for (let j = 1; j < k; j++) if (Math.abs(values[j] - v) < Math.abs(values[best] - v)) best = j;
+    return best;
+  };
+  const codes = axis.codes;
+  const group = new Uint8Array(codes.length);
+  for (let i = 0; i < codes.length; i++) {
+    const c = codes[i];
+    if (c === CODE_MISSING) {
+      group[i] = missing;
+      continue;
+    }
+    let g = lut.get(c);
+    if (g === undefined) lut.set(c, (g = nearest(c)));
+    group[i] = g;
+  }
+  const labels = values.map((v) => String(v));
+  return { group, palette, legend: { kind: "categories", labels, colours: palette.slice(0, k) } };
 }
