@@ -17,7 +17,7 @@ from . import answer, scaletier
 from .carryover import carry_over
 from .encode import ColumnError, display_name, quantise
 from .inputs import to_frame
-from .sources import DataSource, open_source
+from .sources import DataSource, NotInMemoryError, open_source
 from .tabletrait import table_trait, with_index
 
 #: the traits a data swap or ``resume=`` carries over besides the view options
@@ -63,6 +63,26 @@ def table_value(source: DataSource, sample) -> dict:
     if sample.positions is not None:
         return with_index(value, source.frame.index[sample.positions])
     return value
+
+
+def need_rows(source: DataSource, what: str) -> None:
+    """NotInMemoryError for ``what`` (a property or method) when the rows live in an engine."""
+    if not source.in_memory:
+        engine = source.engine
+        raise NotInMemoryError(
+            f"{what} needs every row in this process, but the rows live in {engine} "
+            f"({source.n} rows); use w.count for the exact number selected, w.selected for "
+            f"the selected rows as a lazy {engine} table, or w.to_filter() / w.to_sql() for the filter"
+        )
+
+
+def row_label(source: DataSource, sample, row: int):
+    """Index label of a row on the page (a sample row in the scale tier; engine tables: its position)."""
+    if sample is None:
+        return source.frame.index[row]
+    if sample.positions is not None:
+        return source.frame.index[sample.positions[row]]
+    return row
 
 
 def resumed(widget, source: DataSource, resume) -> tuple[dict, list[str]]:

@@ -21,7 +21,7 @@ from .callbacks import Callbacks, StateGuard
 from .encode import Column
 from .query import to_query
 from .selection import SelectionError
-from .sources import NotInMemoryError, SourceError
+from .sources import SourceError
 
 _STATIC = Path(__file__).parent / "static"
 
@@ -243,13 +243,7 @@ class AxesWidget(anywidget.AnyWidget):
         return self._mask
 
     def _need_rows(self, what: str) -> None:
-        if not self._source.in_memory:
-            engine = self._source.engine
-            raise NotInMemoryError(
-                f"{what} needs every row in this process, but the rows live in {engine} "
-                f"({self._source.n} rows); use w.count for the exact number selected, w.selected for "
-                f"the selected rows as a lazy {engine} table, or w.to_filter() / w.to_sql() for the filter"
-            )
+        switch.need_rows(self._source, what)
 
     @property
     def selected(self):
@@ -315,13 +309,7 @@ class AxesWidget(anywidget.AnyWidget):
         In the scale tier the page holds sample rows; the label is that of the sample row. Engine
         tables have no index: the pinned sample row's position among the sample rows is given.
         """
-        if self.pinned < 0:
-            return None
-        if self._sample is None:
-            return self._source.frame.index[self.pinned]
-        if self._sample.positions is not None:
-            return self._source.frame.index[self._sample.positions[self.pinned]]
-        return self.pinned
+        return None if self.pinned < 0 else switch.row_label(self._source, self._sample, self.pinned)
 
     # -- axis order ----------------------------------------------------------------------------------
     def association(self, metric: str = "spearman", *, max_rows: int | None = 200_000, seed: int = 0):
