@@ -15,8 +15,8 @@ import narwhals as nw
 
 from . import answer, scaletier
 from .carryover import carry_over
-from .encode import ColumnError, display_name, quantise
-from .inputs import to_frame
+from .encode import quantise
+from .inputs import ColumnError, display_name, to_frame
 from .sources import DataSource, NotInMemoryError, open_source
 from .tabletrait import table_trait, with_index
 
