@@ -136,7 +136,10 @@ def commit(widget, source: DataSource, view: dict) -> None:
 
 
 def swap(widget, new) -> None:
-    """Show a new table; the view is carried over where it fits (see ``carryover``), all or nothing."""
+    """Show a new table; the view is carried over where it fits (see ``carryover``), all or nothing.
+
+    Called from the ``data`` setter through ``AxesWidget.__setattr__``: the warning names the caller's line.
+    """
     w = widget
     axes = w._axes_arg
     notes = []
@@ -162,7 +165,7 @@ def swap(widget, new) -> None:
     commit(w, source, view)
     notes += more
     if notes:
-        warnings.warn("axeswidget: the new data changes the view: " + "; ".join(notes), stacklevel=3)
+        warnings.warn("axeswidget: the new data changes the view: " + "; ".join(notes), stacklevel=4)
 
 
 def recode_log(widget, log_axes) -> None:
