@@ -49,3 +49,45 @@ def test_standalone_page_names_the_package_version():
     page = w.to_html()
     state = re.search(r'<script type="application/json" id="axw-state">(.*?)</script>', page, re.S).group(1)
     assert json.loads(state)["caption"]["version"] == aw.__version__
+
+
+def _own_synced_traits() -> list[str]:
+    """The synced traits AxesWidget itself defines (anywidget's own are not the contract), in order."""
+    own = aw.AxesWidget.class_own_traits(sync=True)
+    return [name for name in vars(aw.AxesWidget) if name in own]
+
+
+def test_options_are_derived_from_trait_metadata_and_match_the_wire_contract():
+    from axeswidget import widget, wire
+
+    options = aw.AxesWidget.class_traits(option=True)
+    plumbing = aw.AxesWidget.class_traits(plumbing=True)
+    assert widget._OPTIONS == wire.OPTIONS  # the contract file read by Python and the bundle
+    assert set(options) == set(wire.OPTIONS) and not set(options) & set(plumbing)
+    assert all(trait.metadata.get("sync") for trait in options.values())
+    assert {"edit_seq", "dragging", "answered_seq", "mask_bits", "views"} <= set(plumbing)
+    with pytest.raises(TypeError, match="unknown option 'edit_seq'"):
+        aw.AxesWidget(aw.demo.pump_fleet(20, seed=1), edit_seq=3)  # plumbing is not a keyword option
+
+
+def test_every_synced_trait_is_documented_in_code_and_guide_with_the_same_direction():
+    # the attribute docstring ("#: type, direction, default: ...") in widget.py
+    source = (ROOT / "src" / "axeswidget" / "widget.py").read_text().splitlines()
+    in_code = {}
+    for i, line in enumerate(source):
+        hit = re.match(r"    (\w+) = t\.\w+\(", line)
+        if hit:
+            doc = source[i - 1].strip()
+            assert doc.startswith("#: "), f"trait {hit.group(1)} has no attribute docstring"
+            direction = re.search(r"\b(both|kernel -> page|page -> kernel)\b", doc)
+            assert direction, f"trait {hit.group(1)}: no direction in {doc!r}"
+            in_code[hit.group(1)] = direction.group(1).replace("->", "→")
+    assert list(in_code) == _own_synced_traits()
+    # the trait contract table in DEVELOPERS.md
+    guide = (ROOT / "DEVELOPERS.md").read_text()
+    table = guide.split("## The trait contract", 1)[1].split("\n## ", 1)[0]
+    in_guide = {}
+    for row in re.findall(r"^\| (`[^|]+) \| ([^|]+) \| ([^|]+) \|", table, re.M):
+        for name in re.findall(r"`(\w+)`", row[0]):
+            in_guide[name] = row[1].strip()
+    assert in_guide == in_code

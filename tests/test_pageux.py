@@ -10,7 +10,8 @@ from scipy import stats
 
 import axeswidget as aw
 from axeswidget import export
-from axeswidget.widget import CONTRAST_MAX_ROWS, SAVED_GROUPS
+from axeswidget.answer import CONTRAST_MAX_ROWS
+from axeswidget.checks import SAVED_GROUPS
 
 
 @pytest.fixture
@@ -57,7 +58,7 @@ def test_contrast_axes_name_the_three_unbrushed_axes_most_different(fleet):
 
 
 def test_contrast_axes_skipped_for_very_large_tables(fleet, monkeypatch):
-    monkeypatch.setattr("axeswidget.widget.CONTRAST_MAX_ROWS", 1000)
+    monkeypatch.setattr("axeswidget.answer.CONTRAST_MAX_ROWS", 1000)
     w = aw.AxesWidget(fleet, axes=["flow_m3h", "head_m"])
     w.ranges = {"flow_m3h": [[50, 120]]}
     assert 0 < w.count < len(fleet) and w.contrast_axes == []

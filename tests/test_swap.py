@@ -9,7 +9,7 @@ import pandas as pd
 import pytest
 
 import axeswidget as aw
-from axeswidget import widget as widget_module
+from axeswidget import switch as switch_module
 
 
 def state_of(w: aw.AxesWidget) -> tuple:
@@ -146,7 +146,7 @@ def test_a_failing_swap_changes_nothing(old, monkeypatch):
     def broken(columns, n):
         raise RuntimeError("disk on fire")
 
-    monkeypatch.setattr(widget_module, "table_trait", broken)
+    monkeypatch.setattr(switch_module, "table_trait", broken)
     with pytest.raises(RuntimeError, match="disk on fire"):
         w.data = old.iloc[:2]
     monkeypatch.undo()
@@ -159,13 +159,13 @@ def test_a_failing_swap_changes_nothing(old, monkeypatch):
 def test_a_failing_trait_in_the_commit_rolls_back(old, monkeypatch):
     w = aw.AxesWidget(old, ranges={"size": [[2, 3]]})
     before = state_of(w)
-    real = widget_module.carry_over
+    real = switch_module.carry_over
 
     def bad_view(*args):
         view, notes = real(*args)
         return {**view, "opacity": 7.0}, notes  # refused by the opacity validator inside the commit
 
-    monkeypatch.setattr(widget_module, "carry_over", bad_view)
+    monkeypatch.setattr(switch_module, "carry_over", bad_view)
     with pytest.raises(Exception, match="opacity must be between 0 and 1"):
         w.data = old.iloc[:3]
     assert state_of(w) == before

@@ -10,7 +10,7 @@ import pytest
 import traitlets as t
 
 import axeswidget as aw
-from axeswidget import encode
+from axeswidget import tabletrait
 
 
 @pytest.fixture
@@ -81,6 +81,6 @@ def test_the_page_gets_the_rows_index_labels(frame, monkeypatch):
     plain = aw.AxesWidget(frame.reset_index(drop=True).iloc[10:])
     # a RangeIndex travels as start and step: label = start + step * position
     assert plain.table["index"] == {"start": 10, "step": 1}
-    monkeypatch.setattr(encode, "INDEX_LABELS_MAX", 20)
+    monkeypatch.setattr(tabletrait, "INDEX_LABELS_MAX", 20)
     big = aw.AxesWidget(frame)
     assert "index" not in big.table  # too many labels to send: the page shows positions

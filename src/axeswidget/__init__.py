@@ -8,8 +8,9 @@ selection against the other rows).
 from importlib.metadata import version
 
 from . import contrast, demo, measures, ordering
-from .encode import Column, ColumnError
+from .encode import Column
 from .export import ExportError, PngRequest
+from .inputs import ColumnError
 from .selection import SelectionError
 from .widget import AxesWidget
 

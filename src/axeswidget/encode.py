@@ -18,47 +18,31 @@ included) and ``timedelta``. Missing values (NaN, None, pd.NA, NaT) sit in a lan
 ``±inf`` are drawn pinned to the ends of their axis (the axis shows how many) and are selected by a
 range whose end is open (``None``) on that side.
 
-Roles: when the axes are not named, identifier-like columns (integers running nearly through their span
-or named like an id, and text, where nearly every value differs) and free text are skipped with the
-other undrawable columns in one warning; named in ``axes=`` they are drawn.
+Roles (which columns are drawn when the axes are not named) are decided in ``roles.py``; reading the
+input types in ``inputs.py``; the ``table`` trait built from the columns in ``tabletrait.py``.
 """
 
 from __future__ import annotations
 
 import math
-import re
 import warnings
 from dataclasses import dataclass, field
 
-import narwhals as nw
 import numpy as np
 import pandas as pd
 
+from .inputs import ColumnError, display_name, is_utf8, name_problem
+from .roles import (
+    CATEGORY_LIMIT,
+    INTEGER_DISCRETE_LIMIT,
+    mixed_or_nested,
+    refuse_free_text,
+    refuse_identifier,
+    whole_floats,
+)
+
 # the wire codes and the category band limit (rarer labels share one band) come from the contract
 from .wire import CATEGORY_BAND_LIMIT, CODE_MAX, CODE_MISSING
-
-#: integer columns with at most this many distinct values are drawn as discrete axes
-INTEGER_DISCRETE_LIMIT = 40
-#: whole-number float columns with at most this many distinct values are drawn as discrete axes
-FLOAT_DISCRETE_LIMIT = 20
-#: identifier-like: more than this share of the present values distinct, in more than ID_MIN_ROWS rows
-ID_DISTINCT_SHARE = 0.95
-ID_MIN_ROWS = 50
-#: column names that read as identifiers ("id", "user_id", "PassengerId", "row index", "key", ...)
-ID_NAME = re.compile(
-    r"(?:^|[^A-Za-z0-9])(?i:id|ids|uuid|guid|key|index|idx|no)$"  # "id", "user_id", "row index", "Nr. no"
-    r"|[a-z0-9](?:Id|ID|Key|Index|UUID|No)$"  # camelCase: "PassengerId", "orderNo"
-)
-#: object columns with at most this many distinct labels are categories; more are skipped
-CATEGORY_LIMIT = 100_000
-
-
-class ColumnError(ValueError):
-    """A column cannot be used as an axis; the message names the column and the problem."""
-
-
-class NotGuessed(ColumnError):
-    """A column left out when the axes are not named (identifiers, free text); naming it draws it."""
 
 
 @dataclass
@@ -144,104 +128,6 @@ class Column:
         return out
 
 
-# -- inputs -----------------------------------------------------------------------------------------
-def to_frame(data, names=None) -> pd.DataFrame:
-    """Accept the supported table types and return a pandas DataFrame (no copy where possible).
-
-    pandas DataFrame; any eager table narwhals reads (polars DataFrame, pyarrow Table, ...); any object
-    offering the Arrow PyCapsule stream interface (``__arrow_c_stream__``, e.g. a pyarrow RecordBatch);
-    a dict of 1-D arrays; a 2-D numpy array (column names from ``names``, otherwise ``"0", "1", ...``).
-    """
-    if isinstance(data, pd.DataFrame):
-        return data.copy(deep=False)  # copy-on-write: later edits of the user's frame do not leak in
-    if isinstance(data, np.ndarray):
-        if data.ndim != 2:
-            raise TypeError(f"axeswidget: a numpy array must be 2-D (rows x columns), got {data.ndim}-D")
-        cols = [str(i) for i in range(data.shape[1])] if names is None else list(names)
-        check_names([c for c in cols if isinstance(c, str)])
-        if len(cols) != data.shape[1]:
-            raise ValueError(f"axeswidget: {len(cols)} names for {data.shape[1]} columns")
-        return pd.DataFrame(data.copy(), columns=cols)  # a copy: later edits of the array do not leak in
-    if isinstance(data, dict):
-        check_names([k for k in data if isinstance(k, str)])
-        try:
-            return pd.DataFrame(
-                {
-                    k: np.array(v, copy=True) if not isinstance(v, pd.Series) else v.copy()
-                    for k, v in data.items()
-                }
-            )
-        except ValueError as err:
-            raise ValueError(f"axeswidget: the dict's arrays cannot form a table: {err}") from None
-    try:  # any eager table narwhals reads (polars, pyarrow, modin, cudf, ...)
-        table = nw.from_native(data, eager_only=True)
-    except TypeError:
-        table = None
-    if table is not None:
-        check_names([str(c) for c in table.columns])
-        library = table.implementation.name.lower()
-        if table.implementation is nw.Implementation.PYARROW:  # dates as datetime64, not objects
-            native = table.to_native()
-            return _foreign(lambda: native.to_pandas(date_as_object=False), library)
-        return _foreign(table.to_pandas, library)
-    if hasattr(data, "__arrow_c_stream__"):
-        import pyarrow as pa
-
-        return _foreign(
-            lambda: pa.RecordBatchReader.from_stream(data).read_all().to_pandas(date_as_object=False), "Arrow"
-        )
-    raise TypeError(
-        f"axeswidget: cannot read a table from {type(data).__name__}; give a pandas or polars DataFrame, "
-        "a pyarrow Table, a dict of 1-D arrays or a 2-D numpy array"
-    )
-
-
-def check_names(names) -> None:
-    """Refuse names that polars/Arrow cannot take or the page cannot receive (NUL, lone surrogates)."""
-    for name in names:
-        problem = name_problem(name)
-        if problem:
-            raise ColumnError(f"column {name!r}: {problem}; rename the column")
-
-
-def name_problem(name: str) -> str | None:
-    """Why a column name (or label) cannot be used, or None."""
-    if "\x00" in name:
-        return "the name holds a NUL character"
-    if not _is_utf8(name):
-        return "the name holds a lone surrogate, which cannot be sent to the page as UTF-8"
-    return None
-
-
-def _is_utf8(text: str) -> bool:
-    try:
-        text.encode("utf-8")
-    except UnicodeEncodeError:
-        return False
-    return True
-
-
-def _foreign(convert, library: str) -> pd.DataFrame:
-    """Run a conversion by another library; its panics (BaseException in polars) become clear errors."""
-    try:
-        return convert()
-    except (KeyboardInterrupt, SystemExit):
-        raise
-    except BaseException as err:  # polars' PanicException derives from BaseException
-        raise ValueError(
-            f"axeswidget: {library} could not convert the table: {type(err).__name__}: {err}"
-        ) from None
-
-
-def display_name(label) -> str:
-    """The text shown on an axis header for a column label (tuples of a MultiIndex joined by ' / ')."""
-    if isinstance(label, str):
-        return label
-    if isinstance(label, tuple):
-        return " / ".join(display_name(p) for p in label)
-    return str(label)
-
-
 # -- encoding ---------------------------------------------------------------------------------------
 def quantise(values: np.ndarray, lo: float, hi: float, log: bool = False, missing=None) -> np.ndarray:
     """uint16 codes over [lo, hi] onto 0..CODE_MAX, CODE_MISSING for NaN/missing; ±inf pin to the ends.
@@ -302,19 +188,6 @@ def _domain(values: np.ndarray) -> tuple[float, float]:
     return float(finite.min()), float(finite.max())
 
 
-def _is_mixed_or_nested(series: pd.Series) -> str | None:
-    """Why an object column cannot be an axis, or None if it holds labels only."""
-    sample = series.dropna()
-    types = set(map(type, sample))
-    if not types:
-        return None
-    if any(issubclass(t, list | dict | tuple | set | np.ndarray) for t in types):
-        return "holds nested values (lists, dicts or arrays)"
-    if types <= {str} or types <= {bool, np.bool_}:
-        return None
-    return "mixes value types (" + ", ".join(sorted(t.__name__ for t in types)) + ")"
-
-
 def _category_column(name, label, series: pd.Series, named: bool = True) -> Column:
     missing = series.isna().to_numpy(dtype=bool)
     if isinstance(series.dtype, pd.CategoricalDtype):
@@ -341,7 +214,7 @@ def _category_column(name, label, series: pd.Series, named: bool = True) -> Colu
             values[present].astype(str), return_inverse=True, return_counts=True
         )
         if not named:
-            _refuse_free_text(name, values[present], uniq.size)
+            refuse_free_text(name, values[present], uniq.size)
         if uniq.size > CATEGORY_LIMIT:
             raise ColumnError(
                 f"column {name!r} has {uniq.size} distinct labels; at most {CATEGORY_LIMIT} are drawn"
@@ -362,7 +235,7 @@ def _category_column(name, label, series: pd.Series, named: bool = True) -> Colu
         counts = counts[order]
         kind = "boolean" if is_bool else "category"
         raw = [lab == "True" for lab in labels] if is_bool else labels
-    unsendable = [lab for lab in labels if not _is_utf8(lab)]
+    unsendable = [lab for lab in labels if not is_utf8(lab)]
     if unsendable:
         raise ColumnError(
             f"column {name!r}: the label {unsendable[0]!r} holds a lone surrogate (not sendable)"
@@ -400,61 +273,6 @@ def _as_ns(raw: np.ndarray, missing: np.ndarray, name: str, what: str) -> np.nda
             "exactly in nanoseconds; clip or convert the column"
         )
     return np.where(missing, np.iinfo(np.int64).min, ints * factor)
-
-
-def _refuse_free_text(name: str, present: np.ndarray, distinct: int) -> None:
-    """NotGuessed for text that reads as identifiers or free text (checked only for unnamed axes)."""
-    n = present.size
-    if n <= ID_MIN_ROWS or distinct == 0:
-        return
-    if distinct > ID_DISTINCT_SHARE * n:
-        raise NotGuessed(
-            f"column {name!r} looks like identifiers or free text ({distinct} of {n} values distinct); "
-            "name it in axes= to draw it"
-        )
-    if distinct > 0.5 * n:
-        lengths = np.fromiter((len(str(v)) for v in present), dtype=np.int64, count=n)
-        if np.median(lengths) >= FREE_TEXT_LENGTH:
-            raise NotGuessed(
-                f"column {name!r} looks like free text ({distinct} of {n} values distinct, median length "
-                f"{int(np.median(lengths))} characters); name it in axes= to draw it"
-            )
-
-
-#: text columns with more than half their values distinct and a median length of at least this many
-#: characters are free text (skipped unless named)
-FREE_TEXT_LENGTH = 30
-
-
-def _refuse_identifier(name: str, present: np.ndarray) -> None:
-    """NotGuessed for integers that read as identifiers: nearly all distinct, and either nearly filling
-    their span (row numbers, serial ids) or named like an id."""
-    n = present.size
-    if n <= ID_MIN_ROWS:
-        return
-    uniq = np.unique(present)
-    if uniq.size <= ID_DISTINCT_SHARE * n:
-        return
-    span = int(uniq[-1]) - int(uniq[0]) + 1
-    if span <= 2 * uniq.size or ID_NAME.search(name):
-        raise NotGuessed(
-            f"column {name!r} looks like an identifier ({uniq.size} of {n} values distinct"
-            + (f", {uniq[0]}..{uniq[-1]}" if span <= 2 * uniq.size else "")
-            + "); name it in axes= to draw it"
-        )
-
-
-def _whole_floats(values: np.ndarray, missing: np.ndarray) -> list[int] | None:
-    """The distinct values of a float column holding few whole numbers (class codes), else None."""
-    present = values[~missing]
-    if not present.size or not np.isfinite(present).all() or np.abs(present).max() > 2**53:
-        return None
-    if not (present == np.round(present)).all():
-        return None
-    uniq = np.unique(present)
-    if uniq.size > FLOAT_DISCRETE_LIMIT:
-        return None
-    return [int(v) for v in uniq]
 
 
 def encode_column(label, series: pd.Series, name: str | None = None, named: bool = True) -> Column:
@@ -520,13 +338,13 @@ def encode_column(label, series: pd.Series, name: str | None = None, named: bool
                 if uniq.size <= INTEGER_DISCRETE_LIMIT:
                     col.kind, col.discrete = "integer", [int(v) for v in uniq]
                 elif not named:
-                    _refuse_identifier(name, exact[~missing])
+                    refuse_identifier(name, exact[~missing])
         elif pd.api.types.is_float_dtype(dtype):
-            whole = _whole_floats(values, missing)
+            whole = whole_floats(values, missing)
             if whole is not None:  # 0.0/1.0/2.0 codes (NaN allowed): a discrete axis, ticks on the values
                 col.kind, col.discrete = "integer", whole
     elif pd.api.types.is_object_dtype(dtype) or pd.api.types.is_string_dtype(dtype):
-        why = _is_mixed_or_nested(series) if pd.api.types.is_object_dtype(dtype) else None
+        why = mixed_or_nested(series) if pd.api.types.is_object_dtype(dtype) else None
         if why:
             raise ColumnError(f"column {name!r} {why}, which cannot be drawn on an axis")
         col = _category_column(name, label, series, named)
@@ -593,46 +411,3 @@ def _twice(name: str, names: list[str]) -> str:
     if not name:
         return f"an empty column name appears {times} times; give the columns names"
     return "the name appears more than once"
-
-
-#: up to this many rows the index labels of a non-range index travel as text (above: positions only)
-INDEX_LABELS_MAX = 200_000
-
-
-def index_spec(index) -> dict | None:
-    """The rows' index labels for the page's values box: a range as start/step, else text labels."""
-    if isinstance(index, pd.RangeIndex):
-        return {"start": int(index.start), "step": int(index.step)}
-    if len(index) > INDEX_LABELS_MAX:
-        return None
-    return {"labels": [str(v) for v in index]}
-
-
-def table_trait(
-    columns: dict[str, Column], n: int, codes: dict | None = None, total: int | None = None
-) -> dict:
-    """The value of the widget's ``table`` trait: row counts plus one spec (with its buffer) per axis.
-
-    Without ``codes`` every row's codes are sent (``n`` rows, ``total == n``, ``sampled`` False). With
-    ``codes`` (axis -> uint16 codes of ``n`` sample rows) and ``total`` (all rows), the buffers carry
-    the sample while the specs still describe all ``total`` rows.
-    """
-    specs = []
-    for col in columns.values():
-        spec = col.spec()
-        if codes is not None:
-            spec["codes"] = memoryview(np.ascontiguousarray(codes[col.name], dtype=np.uint16)).cast("B")
-        specs.append(spec)
-    sampled = codes is not None
-    return {
-        "n": int(n),
-        "total": int(n if total is None else total),
-        "sampled": sampled,
-        "columns": specs,
-    }
-
-
-def with_index(table: dict, index) -> dict:
-    """The ``table`` trait with the rows' index labels added under ``index`` (optional for the page)."""
-    spec = index_spec(index)
-    return table if spec is None else {**table, "index": spec}

@@ -13,9 +13,10 @@ from collections.abc import Mapping
 
 import numpy as np
 
-from .encode import CODE_MAX, Column
+from .encode import Column
 from .evaluate import axis_mask
 from .selection import Ranges, _end_key
+from .wire import CODE_MAX
 
 
 def round_page_ranges(ranges: Ranges, previous: Ranges, columns: Mapping[str, Column]) -> Ranges:

@@ -10,6 +10,8 @@ between every pair of axes (``rank_matrix`` trait). The contract is SCALE_CONTRA
 * :func:`pair_counts_value` -- the trait value (little-endian uint32 buffers).
 * :func:`rank_matrix` -- Spearman's rho from :func:`axeswidget.measures.association`.
 * :func:`sample_mask` -- which sample rows of an engine source a selection picks.
+* :func:`measure_ranks`, :func:`publish_pair_counts` -- a widget's background jobs, published under its
+  state lock only while still the newest (:func:`publish_lock`).
 """
 
 from __future__ import annotations
@@ -25,7 +27,7 @@ import narwhals as nw
 import numpy as np
 import pandas as pd
 
-from . import measures
+from . import measures, wire
 
 #: rows above which the rank matrix is measured on a seeded sample (as ``association``'s default)
 RANK_ROWS = 200_000
@@ -215,3 +217,70 @@ def sample_mask(source, sample, ranges: dict) -> np.ndarray:
     frame = nw.from_native(sample.rows, eager_only=True)
     picked = frame.select(source.filter_expression(ranges).alias("__picked"))["__picked"]
     return np.asarray(picked.to_numpy(), dtype=bool)
+
+
+# -- publishing a widget's background results --------------------------------------------------------
+def measure_ranks(widget) -> None:
+    """Compute the widget's ``rank_matrix`` in the background (a 200,000-row sample takes a while)."""
+    source, sample = widget._source, widget._sample
+
+    def job(is_latest):
+        value = rank_matrix(source, sample)
+        if not publish_lock(widget, is_latest):
+            return
+        try:
+            if widget._source is source:
+                widget.rank_matrix = value
+        finally:
+            widget._state_lock.release()
+
+    widget._rank_jobs.submit(job)
+
+
+def publish_pair_counts(widget) -> None:
+    """Recount the pair counts of the widget's current order in the background (scale tier only).
+
+    ``all`` matrices are reused per pair until the data or its codes change; ``selected`` ones
+    until the selection changes. The result is published after count/answered_seq, and only if no
+    newer request came in meanwhile.
+    """
+    with widget._state_lock:
+        if widget._sample is None:
+            return
+        source, order, ranges = widget._source, list(widget.order), dict(widget._applied or {})
+        mask, seq, cache = widget._mask, widget.answered_seq, widget._pair_cache
+        bins = wire.DENSITY_BINS
+
+        def job(is_latest):
+            counts = count_pairs(source, order, bins, ranges, mask, cache, is_latest)
+            if counts is None or not publish_lock(widget, is_latest):
+                return
+            try:
+                if widget._source is source:
+                    widget.pair_counts = pair_counts_value(order, bins, seq, counts)
+            finally:
+                widget._state_lock.release()
+
+        widget._pair_jobs.submit(job)
+
+
+def publish_lock(widget, is_latest) -> bool:
+    """Take the widget's state lock for a background result, unless a newer request makes it stale
+    first (a data swap holds the lock while it waits for the running job: never wait for it blindly)."""
+    lock = widget._state_lock
+    while not lock.acquire(timeout=0.05):
+        if not is_latest():
+            return False
+    if is_latest():
+        return True
+    lock.release()
+    return False
+
+
+def wait_published(widget, timeout: float = 60.0) -> bool:
+    """Block until the widget's background pair counts and rank matrix are published."""
+    done = widget._pair_jobs.wait(timeout) and widget._rank_jobs.wait(timeout)
+    for runner in (widget._pair_jobs, widget._rank_jobs):
+        if runner.error is not None:
+            raise runner.error
+    return done

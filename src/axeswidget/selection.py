@@ -31,7 +31,8 @@ from numbers import Real
 import numpy as np
 import pandas as pd
 
-from .encode import CATEGORY_BAND_LIMIT, Column
+from .encode import Column
+from .wire import CATEGORY_BAND_LIMIT
 
 Ranges = dict[str, list]
 

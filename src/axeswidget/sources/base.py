@@ -35,8 +35,9 @@ import numpy as np
 import pandas as pd
 
 from ..density import MAX_PAIR_BINS, _check_bins, bin_codes
-from ..encode import CATEGORY_BAND_LIMIT, CODE_MISSING, Column
+from ..encode import Column
 from ..selection import Ranges
+from ..wire import CATEGORY_BAND_LIMIT, CODE_MISSING
 
 __all__ = [
     "DataSource",

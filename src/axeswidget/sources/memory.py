@@ -15,8 +15,9 @@ import numpy as np
 import pandas as pd
 
 from ..density import count_bin_pairs
-from ..encode import encode_frame, to_frame
+from ..encode import encode_frame
 from ..evaluate import MaskEvaluator
+from ..inputs import to_frame
 from ..selection import Ranges
 from .base import DataSource, Sample, axis_bins, check_ranges
 from .expressions import selection_expression

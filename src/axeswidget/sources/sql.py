@@ -27,15 +27,10 @@ from collections.abc import Sequence
 import numpy as np
 import pandas as pd
 
-from ..encode import (
-    CATEGORY_BAND_LIMIT,
-    CATEGORY_LIMIT,
-    CODE_MAX,
-    CODE_MISSING,
-    INTEGER_DISCRETE_LIMIT,
-    ColumnError,
-)
+from ..inputs import ColumnError
+from ..roles import CATEGORY_LIMIT, INTEGER_DISCRETE_LIMIT
 from ..selection import Ranges
+from ..wire import CATEGORY_BAND_LIMIT, CODE_MAX, CODE_MISSING
 from .base import DataSource, EngineColumn, EngineError, Sample, axis_bands, check_ranges
 from .expressions import selection_expression
 
