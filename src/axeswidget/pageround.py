@@ -86,21 +86,31 @@ def _round_empty(col: Column, lo, hi) -> list:
 
 
 def _end_interval(col: Column, value: float, side: str) -> tuple[float, float, bool, bool]:
-    """Where a range end may lie and still pick the same rows: (lower, upper, lower open, upper open)."""
+    """Where a range end may lie and still pick the same rows: (lower, upper, lower open, upper open).
+
+    The end may move up to the nearest data values on either side, but never beyond the page's
+    window (half a wire-code step), so only the values inside that window are looked at: one pass of
+    two comparisons over the column, then a search among the few values found.
+    """
+    w_lo, w_hi = _page_window(col, value)
     v = col.values
     with np.errstate(invalid="ignore"):
-        if side == "hi":
-            lower = float(np.max(v, where=v <= value, initial=-math.inf))  # taken in: closed
-            upper = float(np.min(v, where=v > value, initial=math.inf))  # left out: open
-            lower_open, upper_open = False, True
-        else:
-            lower = float(np.max(v, where=v < value, initial=-math.inf))
-            upper = float(np.min(v, where=v >= value, initial=math.inf))
-            lower_open, upper_open = True, False
-    w_lo, w_hi = _page_window(col, value)
-    if w_lo > lower:
+        near = v >= w_lo
+        near &= v <= w_hi
+    close = v[near]
+    if side == "hi":
+        below, above = close[close <= value], close[close > value]  # taken in: closed; left out: open
+        lower_open, upper_open = False, True
+    else:
+        below, above = close[close < value], close[close >= value]  # left out: open; taken in: closed
+        lower_open, upper_open = True, False
+    if below.size:
+        lower = float(below.max())
+    else:
         lower, lower_open = w_lo, False
-    if w_hi < upper:
+    if above.size:
+        upper = float(above.min())
+    else:
         upper, upper_open = w_hi, False
     return lower, upper, lower_open, upper_open
 
