@@ -197,3 +197,14 @@ export class LinePainter {
     this.pool = null;
   }
 }
+
+/** Paint one job into `canvas` with a painter of its own (a PNG at another scale); resolves when drawn. */
+export function paintOnce(canvas: HTMLCanvasElement, job: PaintJob): Promise<void> {
+  return new Promise<void>((resolve) => {
+    const painter: LinePainter = new LinePainter(canvas, () => {}, () => {
+      painter.dispose();
+      resolve();
+    });
+    painter.paint(job);
+  });
+}
