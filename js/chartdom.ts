@@ -8,6 +8,14 @@ export function element<K extends keyof HTMLElementTagNameMap>(tag: K, className
   return el;
 }
 
+/** A blank canvas for a w x h chart (CSS px) at `scale` device pixels per CSS pixel. */
+export function blankCanvas(w: number, h: number, scale: number): HTMLCanvasElement {
+  const c = document.createElement("canvas");
+  c.width = Math.round(w * scale);
+  c.height = Math.round(h * scale);
+  return c;
+}
+
 export class ChartDom {
   readonly root = element("div", "axw-root");
   readonly bar = element("div", "axw-bar");

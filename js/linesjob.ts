@@ -11,6 +11,7 @@ import type { Mode, PaintJob } from "./paint";
 import type { AxisScale } from "./scales";
 import { PairLookup, pairCountsOf } from "./scaletier";
 import type { KernelSync } from "./sync";
+import { DENSITY_ROWS } from "./wire";
 
 export interface JobInput {
   model: WidgetModel;
@@ -26,6 +27,13 @@ export interface JobInput {
   /** the colour groups of the rows (asked for outside the scale tier only) */
   colouring: () => Colouring;
   dpr: number;
+}
+
+/** "lines" or "density": the user's choice (`view_mode`), or by row count when "auto". */
+export function modeOf(model: WidgetModel, table: Table): Mode {
+  const m = model.get("view_mode") ?? "auto";
+  if (m === "lines" || m === "density") return m;
+  return table.sampled || table.n > DENSITY_ROWS ? "density" : "lines";
 }
 
 export class LinesJobs {

@@ -1,27 +1,26 @@
 // One view of the widget (one per output cell): a thin composition of the modules that do the work — the
-// DOM skeleton (chartdom.ts), axes, layout and scales (chartlayout.ts), kernel sync (sync.ts), the lines
-// layer (paint.ts, fed by linesjob.ts), the overlay (overlay.ts), hover and pin (hover.ts) with the values
-// boxes (tipdock.ts), the status line and spoken summary (statusline.ts), wide tables (widechart.ts),
-// gestures (brush.ts), keys (keyboard.ts) and test hooks (hooks.ts). It owns the trait listeners and the
-// redraw scheduling.
+// DOM (chartdom.ts), axes, layout and scales (chartlayout.ts), kernel sync (sync.ts), the lines layer
+// (paint.ts, fed by linesjob.ts), the overlay (overlay.ts), hover and pin (hoverpin.ts), the status line
+// (statusline.ts), wide tables (widechart.ts), input (chartinput.ts) and test hooks (hooks.ts). It owns
+// the trait listeners and the redraw scheduling.
 
 import { neighbourReadouts, RankLookup, type Readout } from "./association";
-import { ChartDom } from "./chartdom";
+import { blankCanvas, ChartDom } from "./chartdom";
 import { attachInput } from "./chartinput";
 import { ChartLayout } from "./chartlayout";
 import { hexToRgb, type Colouring } from "./colour";
 import { decodeTable, rowSpread, type Table } from "./data";
 import { SAVED_GROUPS } from "./groups";
-import { attachHooks, collectTextBoxes, publishDrawn, publishLayout, type TextBox } from "./hooks";
+import { attachHooks, collectTextBoxes, publishDrawn, publishLayout } from "./hooks";
 import type { LineGeometry } from "./hover";
 import { HoverPin } from "./hoverpin";
 import type { Layout } from "./layout";
 import { colouringWithLegend } from "./legend";
-import { LinesJobs } from "./linesjob";
+import { LinesJobs, modeOf } from "./linesjob";
 import type { KeyboardFocus } from "./keyboard";
 import { drawContrastMarks, drawFocus } from "./marks";
 import type { WidgetModel } from "./model";
-import { drawOverlay, readTheme, uprightText, type Theme } from "./overlay";
+import { drawLogical, drawOverlay, readTheme, type Theme } from "./overlay";
 import { LinePainter, paintOnce, type Mode, type PaintJob, type PaintResult } from "./paint";
 import type { AxisScale } from "./scales";
 import { ensureStyles } from "./style";
@@ -31,7 +30,7 @@ import { themeKey, watchTheme } from "./theme";
 import { SelectionTools } from "./tools";
 import { editedAxis, sameRows, type Sel } from "./selection";
 import { WideChart } from "./widechart";
-import { DENSITY_ROWS, OPTIONS } from "./wire";
+import { OPTIONS } from "./wire";
 
 export class View {
   readonly root: HTMLElement;
@@ -103,8 +102,16 @@ export class View {
     );
     attachHooks(this.root, {
       redraw: () => this.redrawTimed(),
-      layersAt: (scale) => this.layersAt(scale),
-      textBoxes: () => this.textBoxes(),
+      // the lines layer and the overlay drawn afresh at `scale` device px per CSS px (a sharp PNG at any scale)
+      layersAt: async (scale) => {
+        const { w, h } = this.chart.physicalSize();
+        const [lines, overlay] = [blankCanvas(w, h, scale), blankCanvas(w, h, scale)];
+        await paintOnce(lines, this.job(scale));
+        this.paintOverlay(overlay, scale);
+        return [lines, overlay];
+      },
+      // every text the overlay draws, with its box, from a fresh drawing on a scratch canvas
+      textBoxes: () => collectTextBoxes(this.chart.physicalSize().w, this.chart.physicalSize().h, (c) => this.paintOverlay(c, 1)),
     });
     host.appendChild(this.root);
     ensureStyles(this.root);
@@ -130,7 +137,7 @@ export class View {
       reorder: (order, final) => this.reorder(order, final),
       preview: (r) => this.sync.edit(r, false),
       hover: (x, y) => this.hover.at(x, y),
-      toLogical: (x, y) => (this.horizontal ? { x: y, y: x } : { x, y }),
+      toLogical: (x, y) => (this.chart.horizontal ? { x: y, y: x } : { x, y }),
       pin: () => this.hover.pin(),
       over: (hit) => this.hover.over(hit),
       commit: (r) => this.commit(r),
@@ -292,10 +299,6 @@ export class View {
     });
   }
 
-  get horizontal(): boolean {
-    return this.chart.horizontal;
-  }
-
   /** The layout in logical coordinates (axes vertical); see Layout.horizontal. */
   layout(): Layout {
     return this.chart.layout();
@@ -316,9 +319,7 @@ export class View {
 
   /** "lines" or "density": the user's choice, or by row count when "auto". */
   mode(): Mode {
-    const m = this.model.get("view_mode") ?? "auto";
-    if (m === "lines" || m === "density") return m;
-    return this.table.sampled || this.table.n > DENSITY_ROWS ? "density" : "lines";
+    return modeOf(this.model, this.table);
   }
 
   private colouringNow(): Colouring {
@@ -346,21 +347,14 @@ export class View {
   /** Axes, ranges, readouts and the highlighted rows, drawn into a canvas at a pixel ratio. */
   private paintOverlay(canvas: HTMLCanvasElement, dpr: number) {
     const layout = this.layout();
-    const ctx = canvas.getContext("2d")!;
-    ctx.setTransform(1, 0, 0, 1, 0, 0);
-    ctx.clearRect(0, 0, canvas.width, canvas.height);
-    let restore = () => {};
-    if (layout.horizontal) {
-      ctx.setTransform(0, dpr, dpr, 0, 0, 0);
-      restore = uprightText(ctx, dpr);
-    } else ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-    const hist = this.model.get("histograms") === false ? null : this.hist;
-    this.wide.picker.refresh(); // ranges may have changed which axes can be hidden
-    drawOverlay(ctx, layout, this.scales(), this.sync.sel, this.theme, this.readouts(), hist);
-    drawContrastMarks(ctx, layout, this.contrastAxes(), this.theme);
-    if (this.keys?.active && this.keys.axis && canvas === this.dom.overlayCanvas) drawFocus(ctx, layout, this.scales(), this.keys.axis, this.keys.band, this.theme);
-    this.hover.draw(ctx, this.theme.fg);
-    restore();
+    drawLogical(canvas, dpr, layout.horizontal, (ctx) => {
+      const hist = this.model.get("histograms") === false ? null : this.hist;
+      this.wide.picker.refresh(); // ranges may have changed which axes can be hidden
+      drawOverlay(ctx, layout, this.scales(), this.sync.sel, this.theme, this.readouts(), hist);
+      drawContrastMarks(ctx, layout, this.contrastAxes(), this.theme);
+      if (this.keys?.active && this.keys.axis && canvas === this.dom.overlayCanvas) drawFocus(ctx, layout, this.scales(), this.keys.axis, this.keys.band, this.theme);
+      this.hover.draw(ctx, this.theme.fg);
+    });
   }
 
   private paint() {
@@ -388,25 +382,6 @@ export class View {
       this.dirtyOverlay = false;
     }
     this.updateStatus(layout);
-  }
-
-  /**
-   * The chart's layers drawn afresh at `scale` device pixels per CSS pixel (for a sharp PNG at any
-   * scale): the lines layer and the overlay, in drawing order.
-   */
-  async layersAt(scale: number): Promise<HTMLCanvasElement[]> {
-    const { w, h } = this.chart.physicalSize();
-    const make = () => {
-      const c = document.createElement("canvas");
-      c.width = Math.round(w * scale);
-      c.height = Math.round(h * scale);
-      return c;
-    };
-    const lines = make();
-    const overlay = make();
-    await paintOnce(lines, this.job(scale));
-    this.paintOverlay(overlay, scale);
-    return [lines, overlay];
   }
 
   private painted(r: PaintResult) {
@@ -437,15 +412,6 @@ export class View {
       curves: !!this.model.get("curves"),
       bundle: this.mode() === "lines" ? (this.hist?.bundle ?? null) : null,
     };
-  }
-
-  /**
-   * Test hook: every text the overlay draws, with its box (logical CSS px), from a fresh overlay
-   * drawing on a scratch canvas (vertical orientation).
-   */
-  textBoxes(): TextBox[] {
-    const { w, h } = this.chart.physicalSize();
-    return collectTextBoxes(w, h, (canvas) => this.paintOverlay(canvas, 1));
   }
 
   /** The axes the kernel marked as setting the selection apart (none once an exported page was edited). */
