@@ -12,7 +12,7 @@ export interface ViewHooks {
   redraw(): Promise<number>;
   layersAt(scale: number): Promise<HTMLCanvasElement[]>;
   /** every text the overlay draws, with its box (logical CSS px) */
-  textBoxes?(): { text: string; font: string; x0: number; y0: number; x1: number; y1: number }[];
+  textBoxes?(): TextBox[];
 }
 
 type Hooked = { __axw?: ViewHooks };
@@ -74,4 +74,33 @@ export function publishLayout(root: HTMLElement, shown: ShownLayout): void {
     pinned: shown.pinned,
     picked: Object.fromEntries(Object.entries(sel).map(([k, v]) => [k, { bands: v.bands, lane: v.lane }])),
   });
+}
+
+export type TextBox = { text: string; font: string; x0: number; y0: number; x1: number; y1: number };
+
+/**
+ * Every text `draw` writes into a fresh scratch canvas of w x h, with its box (logical CSS px): the
+ * canvas's fillText is wrapped to measure each text where it lands.
+ */
+export function collectTextBoxes(w: number, h: number, draw: (canvas: HTMLCanvasElement) => void): TextBox[] {
+  const canvas = document.createElement("canvas");
+  canvas.width = w;
+  canvas.height = h;
+  const ctx = canvas.getContext("2d")!;
+  const boxes: TextBox[] = [];
+  const fill = ctx.fillText.bind(ctx);
+  ctx.fillText = (text: string, x: number, y: number, maxWidth?: number) => {
+    const m = ctx.measureText(text);
+    const width = maxWidth !== undefined ? Math.min(maxWidth, m.width) : m.width;
+    const t = ctx.getTransform();
+    const align = ctx.textAlign;
+    const left = align === "center" ? x - width / 2 : align === "right" || align === "end" ? x - width : x;
+    const px = t.a * left + t.e;
+    const py = t.d * y + t.f;
+    boxes.push({ text, font: ctx.font, x0: px, x1: px + width * t.a, y0: py - m.actualBoundingBoxAscent * t.d, y1: py + m.actualBoundingBoxDescent * t.d });
+    if (maxWidth === undefined) fill(text, x, y);
+    else fill(text, x, y, maxWidth);
+  };
+  draw(canvas);
+  return boxes;
 }

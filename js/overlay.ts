@@ -95,6 +95,20 @@ export function uprightText(ctx: CanvasRenderingContext2D, dpr: number): () => v
   };
 }
 
+/** Clear `canvas` and draw into it in logical coordinates at a pixel ratio (transposed when horizontal, text upright). */
+export function drawLogical(canvas: HTMLCanvasElement, dpr: number, horizontal: boolean, draw: (ctx: CanvasRenderingContext2D) => void) {
+  const ctx = canvas.getContext("2d")!;
+  ctx.setTransform(1, 0, 0, 1, 0, 0);
+  ctx.clearRect(0, 0, canvas.width, canvas.height);
+  let restore = () => {};
+  if (horizontal) {
+    ctx.setTransform(0, dpr, dpr, 0, 0, 0);
+    restore = uprightText(ctx, dpr);
+  } else ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+  draw(ctx);
+  restore();
+}
+
 /** Text with a halo in the background colour, so it stays legible over lines. */
 function label(ctx: CanvasRenderingContext2D, text: string, x: number, y: number, theme: Theme, maxWidth?: number) {
   // a text wider than maxWidth is drawn condensed to fit (numbers are never cut)

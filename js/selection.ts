@@ -225,3 +225,21 @@ export function pickedCodes(axis: AxisData, s: AxisSel): Uint8Array {
   if (s.lane) lut[CODE_MISSING] = 1;
   return lut;
 }
+
+/** Two selections pick the same rows of the page (compared on the page's codes). */
+export function sameRows(table: Table, a: Sel, b: Sel): boolean {
+  if (selKey(a) === selKey(b)) return true;
+  const ma = previewMask(table, a);
+  const mb = previewMask(table, b);
+  if (ma.count !== mb.count) return false;
+  for (let i = 0; i < ma.mask.length; i++) if (ma.mask[i] !== mb.mask[i]) return false;
+  return true;
+}
+
+/** The first axis whose selection differs between `before` and `after` (undefined: none). */
+export function editedAxis(before: Sel, after: Sel): string | undefined {
+  const none = { spans: [], bands: [], lane: false };
+  return [...new Set([...Object.keys(before), ...Object.keys(after)])].find(
+    (k) => selKey({ k: own(before, k) ?? none }) !== selKey({ k: own(after, k) ?? none }),
+  );
+}

@@ -108,7 +108,7 @@ function drawStrip(ctx: CanvasRenderingContext2D, title: string, legend: LegendS
 /**
  * The picture of one view: the lines layer, the overlay on top and the status line drawn in the
  * bottom-left corner, on the theme's background, at `scale` x the canvas's CSS size.
- * The view redraws its layers at that scale when it can (view.ts layersAt); otherwise the screen's
+ * The view redraws its layers at that scale when it can (the `layersAt` hook of view.ts); otherwise the screen's
  * canvases are resampled.
  */
 export async function snapshot(root: HTMLElement, scale: number, title = ""): Promise<{ blob: Blob; width: number; height: number }> {

@@ -15,7 +15,7 @@ import { Accumulator, gainForOpacity } from "../raster";
 
 const CODE_MAX = 65534;
 const CODE_MISSING = 65535;
-/** Density bins per axis, as the page's density pass (paint.ts BINS) and density.py use. */
+/** Density bins per axis, as the page's density pass (drawdensity.ts BINS) and density.py use. */
 const BINS = 128;
 
 /** Where the widget draws: from its data-layout hook and the lines canvas. */
