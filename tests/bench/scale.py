@@ -433,7 +433,7 @@ def hand_pair_sql(view: str, cols: list[str], bounds: dict, where: str, bins: in
         code = f"rint((least(greatest({c}, {lo!r}), {hi!r}) - {lo!r}) / {hi - lo!r} * 65534)"
         binned.append(
             f"CASE WHEN {c} IS NULL OR isnan({c}) THEN {bins}"
-            f" ELSE CAST(({code} * {bins}) div 65535 AS INT) END AS b{i}"
+            f" ELSE CAST((CAST({code} AS BIGINT) * {bins}) div 65535 AS INT) END AS b{i}"
         )
     sets = ", ".join(f"(b{i}, b{i + 1})" for i in range(len(cols) - 1))
     names = ", ".join(f"b{i}" for i in range(len(cols)))
@@ -462,9 +462,12 @@ def bench_spark(folder: Path, rows: int, repeat: int = 3) -> dict:
             .getOrCreate()
         )
     spark.sparkContext.setLogLevel("ERROR")
+    warnings.filterwarnings("ignore", message="PySpark does not yet fully support pandas")
     try:
         files = sorted(glob.glob(str(folder / "*.parquet")))
-        per_file = max(1, rows // len(files))
+        import pyarrow.parquet as pq
+
+        per_file = pq.ParquetFile(files[0]).metadata.num_rows
         df = spark.read.parquet(*files[: max(1, rows // per_file)])
         n = df.count()
         t0 = time.perf_counter()
