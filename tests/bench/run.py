@@ -297,6 +297,11 @@ def main(argv=None) -> dict:
         action="store_true",
         help="only the scale-tier figures; the other figures already in bench.json are kept",
     )
+    ap.add_argument(
+        "--scale-parts",
+        default="memory,duckdb,spark",
+        help="with --scale-only: which scale-tier figures to measure (comma-separated); others are kept",
+    )
     args = ap.parse_args(argv)
     if args.scale_only:
         return scale_only(args)
@@ -387,7 +392,12 @@ def scale_only(args) -> dict:
     path = OUT / "bench.json"
     results = json.loads(path.read_text()) if path.exists() else {}
     start = os.getloadavg()
-    results["scale"] = scale.run(quick=args.quick, big=args.big, browser_on=not args.no_browser)
+    parts = [p.strip() for p in args.scale_parts.split(",") if p.strip()]
+    unknown = sorted(set(parts) - set(scale.PARTS))
+    if unknown:
+        raise SystemExit(f"--scale-parts: unknown part(s) {unknown}; parts are {', '.join(scale.PARTS)}")
+    new = scale.run(quick=args.quick, big=args.big, browser_on=not args.no_browser, parts=parts)
+    results["scale"] = {**results.get("scale", {}), **new}
     results["scale"]["load_average_at_start"] = start
     results["scale"]["load_average_at_end"] = os.getloadavg()
     results["scale"]["cores"] = os.cpu_count()
