@@ -377,6 +377,7 @@ def main(argv=None) -> dict:
         from tests.bench import scale
 
         results["scale"] = scale.run(quick=args.quick, big=args.big, browser_on=not args.no_browser)
+        results["scale"]["targets"] = scale.targets(results["scale"])
     results["load_average_at_end"] = os.getloadavg()
     results["targets"] = summary(results)
     OUT.mkdir(exist_ok=True)
@@ -398,6 +399,7 @@ def scale_only(args) -> dict:
         raise SystemExit(f"--scale-parts: unknown part(s) {unknown}; parts are {', '.join(scale.PARTS)}")
     new = scale.run(quick=args.quick, big=args.big, browser_on=not args.no_browser, parts=parts)
     results["scale"] = {**results.get("scale", {}), **new}
+    results["scale"]["targets"] = scale.targets(results["scale"])
     results["scale"]["load_average_at_start"] = start
     results["scale"]["load_average_at_end"] = os.getloadavg()
     results["scale"]["cores"] = os.cpu_count()

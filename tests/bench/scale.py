@@ -580,6 +580,37 @@ def _guard(fn):
 PARTS = ("memory", "duckdb", "spark")
 
 
+def targets(out: dict) -> list[dict]:
+    """The issue's targets beside the figures measured (None where not measured)."""
+    m, d, sp = out.get("memory") or {}, out.get("duckdb") or {}, out.get("spark") or {}
+    s = m.get("scale") or {}
+    rel, drag = s.get("release") or {}, s.get("drag") or {}
+    rows = [
+        ("first complete picture, s (in memory)", s.get("first_picture_s"), 3.0),
+        ("first picture, scale tier / full path", m.get("first_picture_ratio"), 0.25),
+        ("bytes to the page per view, MB", _mb((s.get("bytes") or {}).get("total")), 8.0),
+        ("longest page task, first picture, ms", s.get("first_picture_longtask_max_ms"), 50.0),
+        ("longest page task while dragging, ms", drag.get("longtask_max_ms"), 50.0),
+        ("longest frame while dragging, ms", drag.get("max"), 33.0),
+        ("release -> exact count (in memory), s", rel.get("widget_s"), 0.3),
+        ("DuckDB release -> count / bare count(*) WHERE", d.get("ratio"), 2.0),
+        ("Spark pair counts / hand-written Spark SQL", sp.get("pair_ratio"), 1.5),
+        ("Spark count / hand-written Spark SQL", sp.get("count_ratio"), 1.5),
+    ]
+    out_rows = []
+    print("\nscale tier, issue 11 targets:")
+    for name, value, target in rows:
+        met = None if value is None else value <= target
+        got = (
+            "not measured"
+            if value is None
+            else f"{value:.3g} (target <= {target:g}: {'met' if met else 'MISSED'})"
+        )
+        print(f"  {name:<48} {got}")
+        out_rows.append({"figure": name, "value": value, "target": target, "met": met})
+    return out_rows
+
+
 def run(
     quick: bool = False,
     big: bool = False,
