@@ -1,14 +1,17 @@
 """`make bench`: speed and size as ratios against baselines measured in the same run.
 
 Never a pass/fail test: these machines are shared and noisy. Each figure is printed as a table and
-written to bench-results/bench.json. Run: ``python -m tests.bench.run [--quick] [--no-browser]``.
+written to bench-results/bench.json. Run: ``python -m tests.bench.run [--quick] [--no-browser] [--big]
+[--scale-only]``.
 
 Every baseline does the same work on the same data as the widget: the mask update vs same-work numpy
 (one changed axis, the cached parts, packbits, count); density pair counts vs a bare numpy.bincount of
 the same binned pairs; axis ordering vs scipy; wire bytes per cell; and, in headless Chromium, the
 lines layer vs a bare one-core accumulation loop over the same segments (per core where workers draw),
 the density pass vs a bare bincount-like loop over the same codes, loading, dragging and the round trip
-(tests/bench/browser.py).
+(tests/bench/browser.py). The scale tier (tests/bench/scale.py): 10^7 x 20 in memory vs today's full path
+in the same run, a Parquet folder through DuckDB vs a bare DuckDB count, Spark local[2] vs hand-written
+Spark SQL.
 """
 
 from __future__ import annotations
@@ -287,7 +290,21 @@ def main(argv=None) -> dict:
     ap = argparse.ArgumentParser(description=__doc__)
     ap.add_argument("--quick", action="store_true", help="only the 10^4 and 10^5 sizes (10 and 20 axes)")
     ap.add_argument("--no-browser", action="store_true", help="skip the headless Chromium figures")
+    ap.add_argument("--big", action="store_true", help="the Parquet folder with 10^8 rows (minutes, GBs)")
+    ap.add_argument("--no-scale", action="store_true", help="skip the scale-tier figures")
+    ap.add_argument(
+        "--scale-only",
+        action="store_true",
+        help="only the scale-tier figures; the other figures already in bench.json are kept",
+    )
+    ap.add_argument(
+        "--scale-parts",
+        default="memory,duckdb,spark",
+        help="with --scale-only: which scale-tier figures to measure (comma-separated); others are kept",
+    )
     args = ap.parse_args(argv)
+    if args.scale_only:
+        return scale_only(args)
     sizes = [(rows, cols) for rows in (10**4, 10**5, 10**6) for cols in (10, 20)]
     if args.quick:
         sizes = [s for s in sizes if s[0] < 10**6]
@@ -354,11 +371,45 @@ def main(argv=None) -> dict:
         from tests.bench import browser
 
         results["browser"] = browser.run(quick=args.quick)
+    if args.no_scale:
+        results["scale"] = {"skipped": "--no-scale"}
+    else:
+        from tests.bench import scale
+
+        results["scale"] = scale.run(quick=args.quick, big=args.big, browser_on=not args.no_browser)
+        results["scale"]["targets"] = scale.targets(results["scale"])
     results["load_average_at_end"] = os.getloadavg()
     results["targets"] = summary(results)
     OUT.mkdir(exist_ok=True)
     (OUT / "bench.json").write_text(json.dumps(results, indent=2))
     print(f"\nwritten to {OUT / 'bench.json'}")
+    return results
+
+
+def scale_only(args) -> dict:
+    """The scale-tier figures alone, written into bench.json beside the figures already there."""
+    from tests.bench import scale
+
+    path = OUT / "bench.json"
+    results = json.loads(path.read_text()) if path.exists() else {}
+    start = os.getloadavg()
+    parts = [p.strip() for p in args.scale_parts.split(",") if p.strip()]
+    unknown = sorted(set(parts) - set(scale.PARTS))
+    if unknown:
+        raise SystemExit(f"--scale-parts: unknown part(s) {unknown}; parts are {', '.join(scale.PARTS)}")
+    new = scale.run(quick=args.quick, big=args.big, browser_on=not args.no_browser, parts=parts)
+    results["scale"] = {**results.get("scale", {}), **new}
+    results["scale"]["targets"] = scale.targets(results["scale"])
+    results["scale"]["load_average_at_start"] = start
+    results["scale"]["load_average_at_end"] = os.getloadavg()
+    results["scale"]["cores"] = os.cpu_count()
+    print(
+        f"\n{os.cpu_count()} cores; 1-minute load average {start[0]:.1f} at the start,"
+        f" {os.getloadavg()[0]:.1f} at the end"
+    )
+    OUT.mkdir(exist_ok=True)
+    path.write_text(json.dumps(results, indent=2))
+    print(f"\nwritten to {path}")
     return results
 
 
