@@ -77,7 +77,10 @@ class Column:
             return 0, 0
         if self.inf_counts is None:
             v = self.values
-            if np.isfinite(v.min(initial=0.0)) and np.isfinite(v.max(initial=0.0)):  # no inf (NaN: count)
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN
+                lo, hi = np.nanmin(v, initial=0.0), np.nanmax(v, initial=0.0)
+            if np.isfinite(lo) and np.isfinite(hi):  # no inf
                 self.inf_counts = (0, 0)
             else:
                 self.inf_counts = (
@@ -179,8 +182,10 @@ def quantise(values: np.ndarray, lo: float, hi: float, log: bool = False, missin
 
 def _domain(values: np.ndarray) -> tuple[float, float]:
     if values.size:
-        lo, hi = values.min(), values.max()
-        if np.isfinite(lo) and np.isfinite(hi):  # no NaN, no inf: the plain extremes
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN: handled below
+            lo, hi = np.nanmin(values), np.nanmax(values)
+        if np.isfinite(lo) and np.isfinite(hi):  # no inf: the extremes of the present values
             return float(lo), float(hi)
     finite = values[np.isfinite(values)]
     if not finite.size:

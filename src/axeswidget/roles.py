@@ -92,6 +92,10 @@ def refuse_identifier(name: str, present: np.ndarray) -> None:
 
 def whole_floats(values: np.ndarray, missing: np.ndarray) -> list[int] | None:
     """The distinct values of a float column holding few whole numbers (class codes), else None."""
+    head = values[:4096]
+    head = head[~np.isnan(head)]
+    if head.size and not (np.isfinite(head).all() and (head == np.round(head)).all()):
+        return None  # a fraction (or an infinity) among the first values: no need to read the rest
     present = values[~missing]
     if not present.size or not np.isfinite(present).all() or np.abs(present).max() > 2**53:
         return None
