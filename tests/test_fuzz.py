@@ -9,7 +9,6 @@ independent pandas reference computed here from the original frame and ``w.range
 
 from __future__ import annotations
 
-import json
 import math
 import os
 
@@ -23,6 +22,7 @@ from hypothesis import HealthCheck, event, given, settings
 from hypothesis import strategies as st
 
 import axeswidget as aw
+from tests.widget_state import widget_state
 
 NAMES = ["x", "é tude", "constructor", "__proto__", "index", "名前", "a b", "toString", "n\u00e9e", "valueOf"]
 KINDS = [
@@ -138,23 +138,7 @@ def reference(df: pd.DataFrame, ranges: dict) -> np.ndarray:
     return keep.to_numpy(dtype=bool)
 
 
-def snapshot(w: aw.AxesWidget) -> tuple:
-    return (
-        json.dumps(w.ranges, sort_keys=True, default=str),
-        list(w.order),
-        list(w.flipped),
-        json.dumps(w.saved, sort_keys=True, default=str),
-        list(w.log_axes),
-        w.color_by,
-        w.bundle_by,
-        w.pinned,
-        w.count,
-        w.mask.tobytes(),
-        list(w.axes),
-        w.data.to_json(default_handler=str, date_format="iso")
-        if len(w.data.columns) == len(set(w.data.columns))
-        else None,
-    )
+snapshot = widget_state
 
 
 def draw_items(draw, w: aw.AxesWidget, axis: str):

@@ -22,24 +22,9 @@ from hypothesis import strategies as st
 
 import axeswidget as aw
 from axeswidget.selection import SelectionError, normalise
+from tests.widget_state import widget_state
 
-
-def state_of(w: aw.AxesWidget) -> tuple:
-    """Everything a refused step must leave alone."""
-    return (
-        json.dumps(w.ranges, sort_keys=True, default=str),
-        list(w.order),
-        list(w.flipped),
-        json.dumps(w.saved, sort_keys=True, default=str),
-        list(w.log_axes),
-        w.color_by,
-        w.bundle_by,
-        w.pinned,
-        w.height,
-        w.count,
-        w.mask.tobytes(),
-        len(w.data),
-    )
+state_of = widget_state
 
 
 # -- names that are keys of every JS object --------------------------------------------------------

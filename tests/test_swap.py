@@ -2,32 +2,15 @@
 
 from __future__ import annotations
 
-import json
-
 import numpy as np
 import pandas as pd
 import pytest
 
 import axeswidget as aw
 from axeswidget import switch as switch_module
+from tests.widget_state import widget_state
 
-
-def state_of(w: aw.AxesWidget) -> tuple:
-    return (
-        json.dumps(w.ranges, sort_keys=True, default=str),
-        list(w.order),
-        list(w.flipped),
-        json.dumps(w.saved, sort_keys=True, default=str),
-        list(w.log_axes),
-        w.color_by,
-        w.bundle_by,
-        w.pinned,
-        w.count,
-        w.mask.tobytes(),
-        w.mask_bits,
-        json.dumps({k: v for k, v in w.table.items() if k != "columns"}),
-        w.data.to_json(date_format="iso"),
-    )
+state_of = widget_state
 
 
 def only_warning(caught) -> str:
