@@ -64,3 +64,13 @@ def show(browser, static_server):
     yield _show
     for p in pages:
         p.close()
+
+
+@pytest.fixture(scope="module")
+def lab(browser):
+    """A real JupyterLab server on 127.0.0.1, one per test module (see tests/browser/jupyter.py)."""
+    from tests.browser.jupyter import JupyterServer
+
+    server = JupyterServer()
+    yield server
+    server.close()

@@ -8,16 +8,9 @@ import json
 
 import pytest
 
-from tests.browser.jupyter import JupyterServer, LabNotebook, drag_axis
+from tests.browser.jupyter import LabNotebook, drag_axis
 
 pytestmark = [pytest.mark.browser, pytest.mark.jupyter]
-
-
-@pytest.fixture(scope="module")
-def lab(browser):
-    server = JupyterServer()
-    yield server
-    server.close()
 
 
 SETUP = """

@@ -8,7 +8,7 @@ import json
 
 import pytest
 
-from tests.browser.jupyter import JupyterServer, LabNotebook
+from tests.browser.jupyter import LabNotebook
 from tests.browser.test_wide import MIN_GAP, line_y, overlapping
 
 pytestmark = [pytest.mark.browser, pytest.mark.jupyter]
@@ -27,13 +27,6 @@ same = bool(df.loc[w.pinned_index].equals(df.iloc[w.pinned]))
 print(json.dumps({"hidden": w.hidden, "pinned": w.pinned, "label": int(w.pinned_index),
                   "order": len(w.order), "loc_equal": same}))
 """
-
-
-@pytest.fixture(scope="module")
-def lab(browser):
-    server = JupyterServer()
-    yield server
-    server.close()
 
 
 def test_31_axes_in_jupyterlab_at_850_px(browser, lab):
