@@ -229,10 +229,25 @@ export function pickedCodes(axis: AxisData, s: AxisSel): Uint8Array {
 /** Two selections pick the same rows of the page (compared on the page's codes). */
 export function sameRows(table: Table, a: Sel, b: Sel): boolean {
   if (selKey(a) === selKey(b)) return true;
-  const ma = previewMask(table, a);
-  const mb = previewMask(table, b);
-  if (ma.count !== mb.count) return false;
-  for (let i = 0; i < ma.mask.length; i++) if (ma.mask[i] !== mb.mask[i]) return false;
+  // axis by axis: the same codes picked means the same rows, found without reading the rows; only an
+  // axis whose picked codes differ is checked on the rows' codes
+  const names = new Set([...Object.keys(a), ...Object.keys(b)]);
+  for (const name of names) {
+    const axis = table.byName.get(name);
+    if (!axis) continue;
+    const sa = own(a, name);
+    const sb = own(b, name);
+    const la = sa && !isEmpty(sa) ? pickedCodes(axis, sa) : null;
+    const lb = sb && !isEmpty(sb) ? pickedCodes(axis, sb) : null;
+    if (la === null && lb === null) continue;
+    const pa = la ?? new Uint8Array(CODE_COUNT).fill(1);
+    const pb = lb ?? new Uint8Array(CODE_COUNT).fill(1);
+    let differ = false;
+    for (let c = 0; c < CODE_COUNT && !differ; c++) differ = pa[c] !== pb[c];
+    if (!differ) continue;
+    const codes = axis.codes;
+    for (let i = 0; i < codes.length; i++) if (pa[codes[i]] !== pb[codes[i]]) return false;
+  }
   return true;
 }
 

@@ -109,3 +109,24 @@ test("a range the kernel set keeps its text when another range is added on its a
   s.x.spans = [[0, 2]];
   assert.deepEqual(toTrait(t, s, prev), rec({ x: [[null, 2]] }));
 });
+
+test("sameRows agrees with comparing the preview masks row by row", async () => {
+  const { sameRows, previewMask } = await import("../selection");
+  const { decodeTable } = await import("../data");
+  const n = 400;
+  const codes = Uint16Array.from({ length: n }, (_, i) => (i * 977) % 65535);
+  const bytes = new DataView(codes.buffer);
+  const table = decodeTable({ n, columns: [{ name: "x", kind: "number", missing: 0, lo: 0, hi: 1, log: false, codes: bytes }] } as never);
+  const ends = [0.1, 0.1000001, 0.25, 0.5, 0.5000004, 0.9];
+  for (const a0 of ends)
+    for (const a1 of ends)
+      for (const b0 of ends) {
+        if (a1 < a0) continue;
+        const a = Object.assign(Object.create(null), { x: { spans: [[a0, a1]], bands: [], lane: false } });
+        const b = Object.assign(Object.create(null), { x: { spans: [[b0, a1]], bands: [], lane: false } });
+        const ma = previewMask(table, a).mask;
+        const mb = previewMask(table, b).mask;
+        const reference = ma.every((v, i) => v === mb[i]); // reference: the row-by-row definition
+        assert.equal(sameRows(table, a, b), reference, `${a0}..${a1} vs ${b0}..${a1}`);
+      }
+});
