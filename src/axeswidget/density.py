@@ -20,54 +20,29 @@ Functions (numpy only):
 * :func:`pair_counts` -- the count matrix of two axes, for all rows or the rows of a mask;
 * :func:`neighbour_counts` -- one count matrix per neighbouring pair of an axis order.
 
-The interface for tables held elsewhere
----------------------------------------
-This module is the kernel-side half of a small interface that an engine-backed table (one too large
-for memory, held by a query engine) could later provide instead of in-memory columns. What the front
-end needs from a table is:
-
-* the **domain** of each numeric axis (``lo``, ``hi``, count of missing and infinite values);
-* the **category counts** of each label axis (labels in axis order and rows per label);
-* the **binned pair counts** of neighbouring axes, all rows and selected rows (this module; an engine
-  computes the same matrix with one ``GROUP BY`` on the two bin expressions);
-* a **sample of rows** (their codes) to draw as lines over the density.
-
-:class:`TableSummary` spells that interface out; in-memory tables get it from :mod:`axeswidget.encode`
-and this module.
+Tables held elsewhere
+---------------------
+The data-source boundary (:class:`axeswidget.sources.base.DataSource`) is the one interface for what
+the front end needs from any table; in-memory sources count with this module, engine sources compute
+the same matrices with one ``GROUP BY`` on the binned expressions.
 """
 
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
 from functools import lru_cache
-from typing import Any, Protocol
+from typing import Any
 
 import numpy as np
 
 from .wire import CODE_MAX, CODE_MISSING, DENSITY_BINS
 
-__all__ = ["MAX_BINS", "MAX_PAIR_BINS", "TableSummary", "bin_codes", "pair_counts", "neighbour_counts"]
+__all__ = ["MAX_BINS", "MAX_PAIR_BINS", "bin_codes", "pair_counts", "neighbour_counts"]
 
 #: Most bins an axis can be split into: one bin per code.
 MAX_BINS = CODE_MAX + 1
 #: Most bins per axis for a count matrix: ``(2049 x 2049)`` int64 values are 34 MB.
 MAX_PAIR_BINS = 2048
-
-
-class TableSummary(Protocol):
-    """What the front end needs from a table, whoever holds it (see the module docstring)."""
-
-    def domain(self, axis: str) -> tuple[float, float]:
-        """Finite ``(lo, hi)`` of a numeric axis."""
-
-    def category_counts(self, axis: str) -> list[tuple[str, int]]:
-        """Labels of a label axis in axis order, with their row counts."""
-
-    def pair_counts(self, left: str, right: str, bins: int, selection: Any = None) -> np.ndarray:
-        """The ``(bins + 1, bins + 1)`` count matrix of two axes (see :func:`pair_counts`)."""
-
-    def sample(self, rows: int, seed: int = 0) -> dict[str, np.ndarray]:
-        """Wire codes of a uniform sample of rows, per axis."""
 
 
 # ---------------------------------------------------------------------------------------------------------
